@@ -1,0 +1,288 @@
+"""Land covers: the parameters that make forest, pasture, crop and open water evaporate differently.
+
+A :class:`Cover` holds every parameter the physics and the engine need for one land-cover class,
+each with its unit, hard limits, typical range and published source (see :data:`PARAMETER_INFO`).
+Four covers are built in (:data:`BUILTIN_COVERS`); a plan file may define more covers that derive
+from one of these by overriding some parameters (:func:`derive_cover`).
+
+References
+----------
+.. [1] Allen, R. G., Pereira, L. S., Raes, D., & Smith, M. (1998). Crop evapotranspiration.
+   FAO Irrigation and Drainage Paper 56. Tables 11, 12 and 22; eqs. 4, 5, 66, 82-84.
+.. [2] Oke, T. R. (1987). Boundary Layer Climates (2nd ed.). Albedo of surfaces.
+.. [3] Calder, I. R. (1990). Evaporation in the Uplands. Canopy storage of conifer plantations.
+.. [4] USDA-SCS (1986). Urban hydrology for small watersheds, TR-55, Table 2-2 (curve numbers).
+.. [5] Dickinson, R. E. (1984). Modeling evapotranspiration for three-dimensional global climate
+   models. Canopy storage ~0.2 mm per unit LAI.
+"""
+
+from __future__ import annotations
+
+from typing import Literal
+
+import numpy as np
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
+
+BaseName = Literal["forest", "pasture", "crop", "water"]
+SOIL_GROUPS = ("A", "B", "C", "D")
+
+#: Per parameter: (unit, typical range, source). Shown in docs and in ``coveryield covers``.
+PARAMETER_INFO: dict[str, tuple[str, str, str]] = {
+    "albedo": ("-", "forest 0.05-0.15, grass 0.17-0.28, crops 0.16-0.26, water 0.05-0.08",
+               "Oke (1987); FAO-56 reference 0.23"),
+    "height_m": ("m", "conifer plantation 10-30, pasture 0.10-0.30, cereals 1-2",
+                 "FAO-56 Table 12 (from memory for forest range)"),
+    "rs_s_per_m": ("s m-1", "forest 60-150, grass 70 (reference), crops 30-50 at full cover",
+                   "FAO-56 eq. 5 and reference surface; forest and crop ranges from memory"),
+    "lai": ("m2 m-2", "conifer 3-10, grass 2-4, crops 3-6", "from memory"),
+    "canopy_capacity_mm": ("mm", "conifer 0.8-2.0, grass 0.5-1, crops ~0.2 per unit LAI",
+                           "Calder (1990); Dickinson (1984); from memory"),
+    "rooting_depth_m": ("m", "conifer 1.0-1.5, pasture 0.5-1.5, cereals 1.0-1.5",
+                        "FAO-56 Table 22"),
+    "depletion_fraction": ("-", "conifer 0.70, pasture 0.60, cereals 0.55", "FAO-56 Table 22"),
+    "curve_number": ("-", "soil groups A-D, 30-100", "USDA-SCS TR-55 Table 2-2 (from memory)"),
+    "fallow_kc": ("-", "bare soil 0.3-1.1 depending on wetting", "FAO-56 Kc ini (from memory)"),
+}
+
+
+class KcCalendar(BaseModel):
+    """An FAO-56 four-stage crop-coefficient calendar (single Kc).
+
+    Kc is constant in the initial and mid-season stages and changes linearly in the development
+    and late stages (FAO-56 eq. 66). Outside the season the crop is absent and the soil is bare.
+
+    Parameters
+    ----------
+    planting_doy_north : int
+        Planting day of year for a northern-hemisphere site [day]; southern sites plant 182 days
+        later (the same season of the year).
+    stage_days : tuple of 4 int
+        Lengths of the initial, development, mid-season and late stages [day].
+    kc_ini, kc_mid, kc_end : float
+        Crop coefficients of the initial stage, mid-season and at harvest [-].
+
+    References
+    ----------
+    FAO-56 (Allen et al. 1998), Table 11 (stage lengths), Table 12 (Kc values), eq. 66.
+    """
+
+    model_config = ConfigDict(frozen=True, extra="forbid")
+
+    planting_doy_north: int = Field(90, ge=1, le=366)
+    stage_days: tuple[int, int, int, int] = (20, 25, 60, 30)
+    kc_ini: float = Field(0.3, ge=0.0, le=1.5)
+    kc_mid: float = Field(1.15, ge=0.0, le=1.5)
+    kc_end: float = Field(0.25, ge=0.0, le=1.5)
+
+    @field_validator("stage_days")
+    @classmethod
+    def _stages_fit_a_year(cls, value: tuple[int, int, int, int]) -> tuple[int, int, int, int]:
+        if any(d < 1 for d in value) or sum(value) > 365:
+            raise ValueError(f"stage lengths must each be >= 1 day and sum to <= 365, got {value}")
+        return value
+
+    @property
+    def season_days(self) -> int:
+        """Length of the growing season [day]."""
+        return int(sum(self.stage_days))
+
+    def kc(self, doy, latitude_deg: float | None = None):
+        """Crop coefficient and in-season flag for each day of year.
+
+        Parameters
+        ----------
+        doy : array_like of int
+            Day of year, 1-366 [day].
+        latitude_deg : float, optional
+            Site latitude [degrees, negative south]; a southern site plants 182 days later.
+
+        Returns
+        -------
+        kc : numpy.ndarray
+            Crop coefficient [-], 0 outside the season.
+        in_season : numpy.ndarray of bool
+            True where the crop is in the field.
+        """
+        doy = np.asarray(doy, dtype=np.int64)
+        planting = self.planting_doy_north + (182 if latitude_deg is not None and latitude_deg < 0 else 0)
+        day = (doy - planting) % 365  # days since planting, 0-based, wrapping over new year
+        l_ini, l_dev, l_mid, l_late = self.stage_days
+        # FAO-56 eq. 66: linear between stage values in the development and late stages
+        knots_day = np.array([0, l_ini, l_ini + l_dev, l_ini + l_dev + l_mid,
+                              l_ini + l_dev + l_mid + l_late], dtype=float)
+        knots_kc = np.array([self.kc_ini, self.kc_ini, self.kc_mid, self.kc_mid, self.kc_end])
+        kc = np.interp(day, knots_day, knots_kc)
+        in_season = day < self.season_days
+        return np.where(in_season, kc, 0.0), in_season
+
+
+class Cover(BaseModel):
+    """Parameters of one land cover.
+
+    Every parameter carries its unit in its name or in :data:`PARAMETER_INFO`, together with its
+    typical range and source. Hard limits (e.g. albedo in 0-1) are enforced; values outside the
+    typical range are allowed (a plan may describe an unusual cover) but documented.
+
+    Parameters
+    ----------
+    name : str
+        Cover name used in plan files.
+    base : {"forest", "pasture", "crop", "water"}
+        Built-in cover this one derives from; decides which processes apply.
+    albedo : float
+        Shortwave reflectance of the surface [-].
+    height_m : float
+        Canopy height, sets the aerodynamic resistance by FAO-56 eq. 4 [m].
+    rs_s_per_m : float
+        Bulk surface resistance of the dry, well-watered canopy [s m-1].
+    lai : float
+        Leaf area index [m2 m-2].
+    canopy_capacity_mm : float
+        Rain the canopy can hold (interception store) [mm].
+    rooting_depth_m : float
+        Effective rooting depth; root-zone capacity = depth x available water capacity [m].
+    depletion_fraction : float
+        FAO-56 p: fraction of the root-zone capacity used before stress starts [-].
+    curve_number : dict
+        SCS curve number for average antecedent wetness per hydrologic soil group A-D [-].
+    kc_calendar : KcCalendar or None
+        For crops: Kc calendar; transpiration then follows Kc x ET0 (FAO-56 eq. 58) in season.
+    fallow_kc : float
+        Soil-evaporation coefficient of bare soil outside the crop season [-].
+    description : str
+        Free text shown to users.
+    """
+
+    model_config = ConfigDict(frozen=True, extra="forbid")
+
+    name: str = Field(min_length=1)
+    base: BaseName
+    description: str = ""
+    albedo: float = Field(ge=0.0, le=1.0)
+    height_m: float = Field(ge=0.0, le=120.0)
+    rs_s_per_m: float = Field(ge=0.0, le=5000.0)
+    lai: float = Field(ge=0.0, le=20.0)
+    canopy_capacity_mm: float = Field(ge=0.0, le=10.0)
+    rooting_depth_m: float = Field(ge=0.0, le=10.0)
+    depletion_fraction: float = Field(ge=0.0, le=0.95)
+    curve_number: dict[str, float]
+    kc_calendar: KcCalendar | None = None
+    fallow_kc: float = Field(0.0, ge=0.0, le=1.3)
+
+    @field_validator("curve_number")
+    @classmethod
+    def _curve_numbers_cover_each_soil_group(cls, value: dict[str, float]) -> dict[str, float]:
+        missing = [g for g in SOIL_GROUPS if g not in value]
+        extra = [g for g in value if g not in SOIL_GROUPS]
+        if missing or extra:
+            raise ValueError(f"needs exactly the soil groups A, B, C, D; missing {missing}, unknown {extra}")
+        bad = {g: cn for g, cn in value.items() if not 30.0 <= cn <= 100.0}
+        if bad:
+            raise ValueError(f"curve numbers must lie in 30-100, got {bad}")
+        return dict(value)
+
+    @model_validator(mode="after")
+    def _land_covers_need_roots_and_height(self) -> Cover:
+        if self.base != "water":
+            if self.height_m <= 0.0:
+                raise ValueError(f"a {self.base} cover needs height_m > 0, got {self.height_m}")
+            if self.rooting_depth_m <= 0.0:
+                raise ValueError(f"a {self.base} cover needs rooting_depth_m > 0, got {self.rooting_depth_m}")
+        if self.base == "crop" and self.kc_calendar is None:
+            raise ValueError("a crop cover needs a kc_calendar")
+        return self
+
+    @property
+    def is_water(self) -> bool:
+        """True for open water (no canopy, no soil)."""
+        return self.base == "water"
+
+
+def _builtin_covers() -> dict[str, Cover]:
+    forest = Cover(
+        name="forest", base="forest",
+        description="Evergreen conifer plantation at canopy closure",
+        albedo=0.12,               # Oke (1987) via FAO-56 practice: forest 0.12
+        height_m=20.0,             # mid-rotation plantation; typical 10-30 m (from memory)
+        rs_s_per_m=100.0,          # dry conifer canopy, typical 60-150 s/m (from memory)
+        lai=6.0,                   # conifer plantations 3-10 (from memory)
+        canopy_capacity_mm=1.8,    # Sitka spruce ~1-1.5 mm, Douglas fir 1-2.4 mm (from memory)
+        rooting_depth_m=1.5,       # FAO-56 Table 22, conifer trees 1.0-1.5 m
+        depletion_fraction=0.70,   # FAO-56 Table 22, conifer trees
+        curve_number={"A": 30, "B": 55, "C": 70, "D": 77},  # TR-55 woods, good (from memory)
+    )
+    pasture = Cover(
+        name="pasture", base="pasture",
+        description="Grazed grass pasture, rotated grazing",
+        albedo=0.23,               # FAO-56 reference grass
+        height_m=0.15,             # FAO-56 Table 12, rotated grazing 0.15-0.30 m
+        rs_s_per_m=70.0,           # FAO-56 reference surface (eq. 5 with LAI = 24 h)
+        lai=2.88,                  # FAO-56 reference grass LAI = 24 x 0.12
+        canopy_capacity_mm=0.5,    # grass 0.5-1 mm, ~0.2 mm per unit LAI (Dickinson 1984)
+        rooting_depth_m=0.8,       # FAO-56 Table 22, grazing pasture 0.5-1.5 m
+        depletion_fraction=0.60,   # FAO-56 Table 22, grazing pasture
+        curve_number={"A": 39, "B": 61, "C": 74, "D": 80},  # TR-55 pasture, good (from memory)
+    )
+    crop = Cover(
+        name="crop", base="crop",
+        description="Spring cereal (wheat/barley), one crop a year, bare soil between",
+        albedo=0.23,               # cereals 0.16-0.26 (Oke 1987)
+        height_m=1.0,              # FAO-56 Table 12, spring wheat
+        rs_s_per_m=50.0,           # crops 30-50 s/m at full cover (from memory)
+        lai=4.0,                   # cereals 4-6 (from memory)
+        canopy_capacity_mm=1.0,    # ~0.2 mm per unit LAI (Dickinson 1984)
+        rooting_depth_m=1.2,       # FAO-56 Table 22, spring wheat 1.0-1.5 m
+        depletion_fraction=0.55,   # FAO-56 Table 22, spring wheat
+        curve_number={"A": 67, "B": 78, "C": 85, "D": 89},  # TR-55 row crops, good (from memory)
+        kc_calendar=KcCalendar(),  # FAO-56 Tables 11-12, spring wheat 20/25/60/30 d, 0.3/1.15/0.25
+        fallow_kc=0.4,             # FAO-56 Kc ini for bare soil with infrequent wetting (from memory)
+    )
+    water = Cover(
+        name="water", base="water",
+        description="Open water: reservoir, lake or pond",
+        albedo=0.08,               # open water, daily mean (Oke 1987 via secondary source)
+        height_m=0.0, rs_s_per_m=0.0, lai=0.0, canopy_capacity_mm=0.0,
+        rooting_depth_m=0.0, depletion_fraction=0.0,
+        curve_number={"A": 100, "B": 100, "C": 100, "D": 100},
+    )
+    return {c.name: c for c in (forest, pasture, crop, water)}
+
+
+#: The four built-in covers, by name.
+BUILTIN_COVERS: dict[str, Cover] = _builtin_covers()
+
+
+def derive_cover(name: str, base: str | Cover, overrides: dict | None = None,
+                 covers: dict[str, Cover] | None = None) -> Cover:
+    """Define a new cover from a built-in (or already defined) cover and parameter overrides.
+
+    Parameters
+    ----------
+    name : str
+        Name of the new cover.
+    base : str or Cover
+        The cover to start from: a built-in name, a name in ``covers``, or a Cover.
+    overrides : dict, optional
+        Parameter values to replace (keys are :class:`Cover` fields).
+    covers : dict, optional
+        Covers to look ``base`` up in (default: the built-ins).
+
+    Returns
+    -------
+    Cover
+        The derived cover; its ``base`` is the built-in kind it finally derives from.
+
+    Raises
+    ------
+    KeyError
+        If ``base`` names no known cover.
+    pydantic.ValidationError
+        If an override is unknown or out of range.
+    """
+    known = BUILTIN_COVERS if covers is None else covers
+    parent = base if isinstance(base, Cover) else known[base]
+    fields = parent.model_dump()
+    fields.update(overrides or {})
+    fields["name"] = name
+    fields["base"] = parent.base
+    return Cover.model_validate(fields)

@@ -1,0 +1,23 @@
+"""Error types a user can cause (bad files, bad values).
+
+Every error a user can cause derives from :class:`CoveryieldError`, so the command line can answer
+it with one readable message and exit status 2 instead of a traceback.
+"""
+
+from __future__ import annotations
+
+
+class CoveryieldError(Exception):
+    """Base class for problems caused by the user's input, reported without a traceback."""
+
+
+class ClimateFileError(CoveryieldError, ValueError):
+    """A climate record is malformed or implausible; the message lists every problem found."""
+
+
+class PlanFileError(CoveryieldError, ValueError):
+    """A plan file is malformed; the message names the key path, the value and what was expected."""
+
+
+class OutputError(CoveryieldError, OSError):
+    """An output could not be written (for example the target exists and would be overwritten)."""
