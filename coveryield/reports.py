@@ -1,0 +1,161 @@
+"""Reports: the printed comparison table and the output folder (written atomically).
+
+Nothing here computes hydrology; it formats :class:`coveryield.comparison.Comparison` results.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import shutil
+import tempfile
+from pathlib import Path
+
+from coveryield.comparison import CAUTION, Comparison
+from coveryield.errors import OutputError
+
+#: Files written by :func:`write_outputs`, in order.
+OUTPUT_FILES = ("annual.csv", "summary.json", "monthly.csv", "flow_duration.csv",
+                "crosscheck.csv", "tiles.csv", "README.txt")
+
+
+def _signed(value: float, digits: int = 1) -> str:
+    if value is None or (isinstance(value, float) and math.isnan(value)):
+        return "n/a"
+    text = f"{value:+,.{digits}f}"
+    return text.replace("-", "\u2212")
+
+
+def comparison_table(result: Comparison) -> str:
+    """A readable plain-text comparison of every plan against `current`.
+
+    Parameters
+    ----------
+    result : Comparison
+        The compared plans.
+
+    Returns
+    -------
+    str
+        Several lines of text, units in every header, caution at the end.
+    """
+    spec = result.plan_file.catchment
+    years = result.years
+    lines = [
+        f"{spec.name}: {spec.area_km2:g} km2, {len(years)} complete years "
+        f"{years[0]}-{years[-1]}; dry years (driest 10 % by rain): "
+        + ", ".join(str(y) for y in sorted(result.dry_years)),
+        "",
+    ]
+    header = (f"{'plan':<24}{'yield':>9}{'yield':>10}{'flow':>8}{'change':>9}{'change':>8}"
+              f"{'change':>10}{'dry 10%':>9}{'driest':>9}{'Q95':>8}{'Q95':>8}{'evap':>7}{'Zhang':>7}")
+    units = (f"{'':<24}{'mm/yr':>9}{'ML/yr':>10}{'m3/s':>8}{'mm/yr':>9}{'%':>8}"
+             f"{'ML/yr':>10}{'mm/yr':>9}{'mm/yr':>9}{'m3/s':>8}{'chg %':>8}{'mm/yr':>7}{'mm/yr':>7}")
+    lines += [header, units, "-" * len(header)]
+    for name in result.plan_names:
+        o = result.outcome(name)
+        row = (f"{name[:23]:<24}{o.mean_yield_mm:>9.0f}{o.mean_yield_ml:>10,.0f}"
+               f"{o.mean_flow_m3s:>8.3f}")
+        if name == "current":
+            row += f"{'':>9}{'':>8}{'':>10}{'':>9}{'':>9}{o.q95_m3s:>8.3f}{'':>8}"
+        else:
+            c = result.change(o)
+            row += (f"{_signed(c.yield_mm):>9}{_signed(c.yield_pct):>8}{_signed(c.yield_ml, 0):>10}"
+                    f"{_signed(c.dry10_mm):>9}{_signed(c.driest_year_mm):>9}{o.q95_m3s:>8.3f}"
+                    f"{_signed(c.q95_pct, 0):>8}")
+        flag = " *" if o.crosscheck_flag else ""
+        row += f"{o.model_evap_mm:>7.0f}{o.zhang_evap_mm:>7.0f}{flag}"
+        lines.append(row)
+    lines += [
+        "",
+        "change: against `current` (negative = less water). dry 10%: mean change over the dry "
+        "years. Q95: flow exceeded on 95 % of days.",
+        "evap vs Zhang: daily model against the Zhang et al. (2001) curve for the same mix; "
+        "* marks a difference above the stated tolerance "
+        f"({result.summary()['crosscheck_tolerance_pct']:.0f} %).",
+        "",
+        f"CAUTION: {CAUTION}",
+    ]
+    return "\n".join(lines)
+
+
+def _readme_text(result: Comparison) -> str:
+    return "\n".join([
+        f"coveryield comparison: {result.plan_file.catchment.name}",
+        f"plan file: {result.plan_file.source}",
+        "",
+        "annual.csv        per plan and year; mm over the whole catchment, yield_ml in ML",
+        "summary.json      mean annual yield (mm, ML/yr, m3/s) and changes against `current`",
+        "monthly.csv       mean yield per calendar month, mm/month, and change",
+        "flow_duration.csv streamflow (m3/s) exceeded on a given % of days, per plan",
+        "crosscheck.csv    mean annual evaporation: daily model vs Zhang (2001) and Fu (1981)",
+        "tiles.csv         the same per zone and cover (tile), with mean rain and ET0",
+        "",
+        f"CAUTION: {CAUTION}",
+        "",
+    ])
+
+
+def _write_all(result: Comparison, folder: Path) -> None:
+    result.annual_table().to_csv(folder / "annual.csv", index=False, float_format="%.3f")
+    (folder / "summary.json").write_text(json.dumps(result.summary(), indent=2) + "\n")
+    result.monthly_table().to_csv(folder / "monthly.csv", float_format="%.3f")
+    result.fdc_table().to_csv(folder / "flow_duration.csv", index=False, float_format="%.5f")
+    result.crosscheck_table().to_csv(folder / "crosscheck.csv", index=False, float_format="%.2f")
+    result.cover_crosscheck_table().to_csv(folder / "tiles.csv", index=False, float_format="%.2f")
+    (folder / "README.txt").write_text(_readme_text(result))
+
+
+def write_outputs(result: Comparison, out_dir: str | os.PathLike, *, force: bool = False) -> Path:
+    """Write the comparison tables into a folder, all or nothing.
+
+    Every file is first written to a temporary folder beside ``out_dir``; only when all are
+    complete are they moved into place, so a failure never leaves half an output.
+
+    Parameters
+    ----------
+    result : Comparison
+        The compared plans.
+    out_dir : path
+        Folder to create (or an empty folder). An existing non-empty folder is refused unless
+        ``force`` is set, and even then only the files listed in :data:`OUTPUT_FILES` are replaced.
+    force : bool
+        Replace earlier coveryield outputs in ``out_dir``.
+
+    Returns
+    -------
+    pathlib.Path
+        The output folder.
+
+    Raises
+    ------
+    coveryield.errors.OutputError
+        If the folder holds other files, or cannot be written.
+    """
+    out = Path(out_dir)
+    if out.exists() and not out.is_dir():
+        raise OutputError(f"{out}: exists and is not a folder; expected a new or empty folder")
+    if out.is_dir() and any(out.iterdir()) and not force:
+        raise OutputError(
+            f"{out}: folder is not empty; choose a new folder, or pass --force to replace "
+            f"earlier coveryield outputs ({', '.join(OUTPUT_FILES)})"
+        )
+    parent = out.resolve().parent
+    try:
+        parent.mkdir(parents=True, exist_ok=True)
+        staging = Path(tempfile.mkdtemp(prefix=f".{out.name}-", dir=parent))
+    except OSError as exc:
+        raise OutputError(f"{out}: cannot write here ({exc.strerror})") from None
+    try:
+        _write_all(result, staging)
+        if not out.exists():
+            staging.rename(out)
+        else:
+            for name in OUTPUT_FILES:
+                os.replace(staging / name, out / name)
+    except OSError as exc:
+        raise OutputError(f"{out}: writing outputs failed ({exc}); nothing was changed") from None
+    finally:
+        shutil.rmtree(staging, ignore_errors=True)
+    return out
