@@ -14,16 +14,19 @@ References
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 
 #: Latent heat of vaporisation used throughout FAO-56 [MJ kg-1].
 LATENT_HEAT_MJ_PER_KG = 2.45
+#: 1/lambda as printed in FAO-56 eqs. 6 and 20 (and ASCE-EWRI 2005 eq. 1) [mm m2 MJ-1].
+RADIATION_TO_EVAPORATION_MM_PER_MJ = 0.408
 #: Specific heat of moist air at constant pressure [MJ kg-1 °C-1].
 SPECIFIC_HEAT_AIR_MJ_PER_KG_C = 1.013e-3
 #: Ratio of the molecular weights of water vapour and dry air [-].
 MOLECULAR_WEIGHT_RATIO = 0.622
 #: FAO-56 eq. 8 factor cp / (epsilon * lambda), as printed [°C-1].
 PSYCHROMETRIC_FACTOR_PER_C = 0.665e-3
-#: Inverse of the specific gas constant of dry air, 1/0.287 rounded as in FAO-56 Annex 3 [kg K kJ-1].
+#: Inverse specific gas constant of dry air, 1/0.287 as rounded in FAO-56 Annex 3 [kg K kJ-1].
 AIR_DENSITY_FACTOR = 3.486
 #: Kelvin offset used by FAO-56 for absolute temperatures in radiation and density [K].
 KELVIN_OFFSET_K = 273.16
@@ -36,13 +39,15 @@ SATURATION_C_C = 237.3
 
 
 def _like(result, *inputs):
-    """Return ``result`` as a Series on the index of the first Series among ``inputs``."""
-    for value in inputs:
-        if hasattr(value, "index") and hasattr(value, "to_numpy"):
-            import pandas as pd
+    """Shape ``result`` like the inputs (Series index, float for 0-d, else an array).
 
-            return pd.Series(np.asarray(result), index=value.index)
-    return result
+    A Series takes the index of the first Series among ``inputs``.
+    """
+    for value in inputs:
+        if isinstance(value, pd.Series):
+            return pd.Series(np.asarray(result, dtype=float), index=value.index)
+    result = np.asarray(result, dtype=float)
+    return float(result) if result.ndim == 0 else result
 
 
 def _arr(value):
@@ -150,8 +155,9 @@ def mean_saturation_vapour_pressure(tmax_c, tmin_c):
     ----------
     FAO-56 (Allen et al. 1998), eq. 12.
     """
-    es = 0.5 * (_arr(saturation_vapour_pressure(tmax_c))
-                + _arr(saturation_vapour_pressure(tmin_c)))  # FAO-56 eq. 12
+    es = 0.5 * (
+        _arr(saturation_vapour_pressure(tmax_c)) + _arr(saturation_vapour_pressure(tmin_c))
+    )  # FAO-56 eq. 12
     return _like(es, tmax_c, tmin_c)
 
 
@@ -177,7 +183,9 @@ def vapour_pressure_slope(t_c):
     FAO-56 (Allen et al. 1998), eq. 13.
     """
     t = _arr(t_c)
-    delta = 4098.0 * _arr(saturation_vapour_pressure(t)) / (t + SATURATION_C_C) ** 2  # FAO-56 eq. 13
+    delta = (
+        4098.0 * _arr(saturation_vapour_pressure(t)) / (t + SATURATION_C_C) ** 2
+    )  # FAO-56 eq. 13
     return _like(delta, t_c)
 
 
@@ -232,8 +240,10 @@ def actual_vapour_pressure_from_rh_max_min(tmax_c, tmin_c, rh_max_pct, rh_min_pc
     ----------
     FAO-56 (Allen et al. 1998), eq. 17.
     """
-    ea = 0.5 * (_arr(saturation_vapour_pressure(tmin_c)) * _arr(rh_max_pct) / 100.0
-                + _arr(saturation_vapour_pressure(tmax_c)) * _arr(rh_min_pct) / 100.0)  # FAO-56 eq. 17
+    ea = 0.5 * (
+        _arr(saturation_vapour_pressure(tmin_c)) * _arr(rh_max_pct) / 100.0
+        + _arr(saturation_vapour_pressure(tmax_c)) * _arr(rh_min_pct) / 100.0
+    )  # FAO-56 eq. 17
     return _like(ea, tmax_c, tmin_c, rh_max_pct, rh_min_pct)
 
 
@@ -289,7 +299,9 @@ def actual_vapour_pressure_from_rh_mean(tmax_c, tmin_c, rh_mean_pct):
     ----------
     FAO-56 (Allen et al. 1998), eq. 19.
     """
-    ea = _arr(rh_mean_pct) / 100.0 * _arr(mean_saturation_vapour_pressure(tmax_c, tmin_c))  # FAO-56 eq. 19
+    ea = (
+        _arr(rh_mean_pct) / 100.0 * _arr(mean_saturation_vapour_pressure(tmax_c, tmin_c))
+    )  # FAO-56 eq. 19
     return _like(ea, tmax_c, tmin_c, rh_mean_pct)
 
 
@@ -372,6 +384,8 @@ def air_density(pressure_kpa, t_c, ea_kpa):
     FAO-56 (Allen et al. 1998), eq. 3 notes (Box 6) and Annex 3, eq. 3-5.
     """
     p = _arr(pressure_kpa)
-    tkv = (_arr(t_c) + KELVIN_OFFSET_K) / (1.0 - 0.378 * _arr(ea_kpa) / p)  # FAO-56 Annex 3, virtual T
+    tkv = (_arr(t_c) + KELVIN_OFFSET_K) / (
+        1.0 - 0.378 * _arr(ea_kpa) / p
+    )  # FAO-56 Annex 3, virtual T
     rho = AIR_DENSITY_FACTOR * p / tkv  # FAO-56 Annex 3 eq. 3-5
     return _like(rho, pressure_kpa, t_c, ea_kpa)
