@@ -153,12 +153,10 @@ def fu_omega_matching_zhang(w: float) -> float:
     float
         Fu's omega [-].
     """
-    from scipy.optimize import minimize_scalar
-
     phi = np.linspace(0.2, 3.0, 57)
     target = zhang_evaporation(1.0, phi, w)
-
-    def misfit(omega: float) -> float:
-        return float(np.sum((fu_evaporation(1.0, phi, omega) - target) ** 2))
-
-    return float(minimize_scalar(misfit, bounds=(1.05, 10.0), method="bounded").x)
+    # Least squares over a fine grid of omega (step 0.001): exact enough for a cross-check and
+    # keeps the package free of an optimiser import at start-up.
+    omega = np.arange(1.05, 10.0, 0.001)
+    misfit = ((fu_evaporation(1.0, phi[None, :], omega[:, None]) - target) ** 2).sum(axis=1)
+    return float(omega[np.argmin(misfit)])
