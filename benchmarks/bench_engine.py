@@ -1,0 +1,125 @@
+"""Speed of the tile water-balance engine (one core), measured in one run and printed as ratios.
+
+Prints nanoseconds per tile-day for a dozen tiles and for 4,000 tiles × 30 years (11,000 days),
+warm (the first, compiling call is excluded; best of several repeats), the cost of streaming the
+four float64 inputs alone for context, and the cost of a "share change" (a weighted sum over
+tiles of the annual and daily yield) against re-simulating the dozen tiles.
+
+Run: ``cd /work/main && PYTHONPATH=. .venv/bin/python benchmarks/bench_engine.py [--small]``
+"""
+
+from __future__ import annotations
+
+import argparse
+import time
+
+import numpy as np
+from numba import njit
+
+from coveryield.engine.water_balance import TileParameters, simulate_tiles
+
+N_DAYS = 11_000
+TARGET_NS_MANY = 5.0
+TARGET_NS_DOZEN = 20.0
+TARGET_SHARE_RATIO = 1_000.0
+
+
+def make_inputs(n_tiles, n_days=N_DAYS, seed=0):
+    """Invented forcing and parameters: a wet temperate climate, a mix of covers."""
+    rng = np.random.default_rng(seed)
+    shape = (n_days, n_tiles)
+    season = 0.5 * (1.0 - np.cos(2.0 * np.pi * (np.arange(n_days) % 365) / 365.0))[:, None]
+    rain = np.where(rng.random(shape) < 0.55, rng.gamma(0.8, 9.0, shape), 0.0)
+    wet = (2.0 + 4.0 * season) * rng.uniform(0.8, 1.2, shape)
+    dry = (0.5 + 3.0 * season) * rng.uniform(0.8, 1.2, shape)
+    soil = np.where(rng.random(shape) < 0.2, 0.3 * wet, 0.0)
+    params = TileParameters(
+        canopy_capacity_mm=rng.uniform(0.2, 2.0, n_tiles),
+        root_zone_capacity_mm=rng.uniform(60.0, 300.0, n_tiles),
+        depletion_fraction=rng.uniform(0.4, 0.7, n_tiles),
+        curve_number=rng.uniform(55.0, 90.0, n_tiles),
+        is_water=rng.random(n_tiles) < 0.05,
+    )
+    years = np.minimum(np.arange(n_days) // 365, (n_days - 1) // 365)
+    return rain, wet, dry, soil, params, years
+
+
+def best_time(func, repeats):
+    """Best wall time of ``repeats`` calls [s]."""
+    best = np.inf
+    for _ in range(repeats):
+        start = time.perf_counter()
+        func()
+        best = min(best, time.perf_counter() - start)
+    return best
+
+
+@njit(cache=True)
+def _stream_inputs(a, b, c, d):
+    total = 0.0
+    n_days, n_tiles = a.shape
+    for i in range(n_days):
+        for j in range(n_tiles):
+            total += a[i, j] + b[i, j] + c[i, j] + d[i, j]
+    return total
+
+
+def report(label, measured, target, better="lower"):
+    ok = measured <= target if better == "lower" else measured >= target
+    sign = "≤" if better == "lower" else "≥"
+    print(
+        f"  {label:<46} {measured:>12.2f}   target {sign} {target:>8.1f}   "
+        f"{'met' if ok else 'NOT met'}"
+    )
+
+
+def main(argv=None):
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--small", action="store_true", help="skip the 4,000-tile case")
+    args = parser.parse_args(argv)
+
+    print(f"Engine benchmark, {N_DAYS} days, one core, warm, best of several runs")
+    dozen = make_inputs(12)
+    simulate_tiles(*dozen)  # compile (excluded)
+    seconds_dozen = best_time(lambda: simulate_tiles(*dozen), 20)
+    ns_dozen = seconds_dozen / (N_DAYS * 12) * 1e9
+    report("12 tiles: ns per tile-day", ns_dozen, TARGET_NS_DOZEN)
+
+    run = simulate_tiles(*dozen)
+    weights = np.full(12, 1.0 / 12)
+    annual_yield, daily_yield = run.annual.yield_mm, run.daily_yield_mm
+    seconds_annual = best_time(lambda: annual_yield @ weights, 2000)
+    seconds_both = best_time(lambda: (annual_yield @ weights, daily_yield @ weights), 500)
+    report(
+        "share change (annual only): times cheaper",
+        seconds_dozen / seconds_annual,
+        TARGET_SHARE_RATIO,
+        better="higher",
+    )
+    report(
+        "share change (annual + daily): times cheaper",
+        seconds_dozen / seconds_both,
+        TARGET_SHARE_RATIO,
+        better="higher",
+    )
+    print(
+        f"    (re-simulate 12 tiles {seconds_dozen * 1e3:.2f} ms; weighted sums: annual "
+        f"{seconds_annual * 1e6:.1f} µs, annual + daily {seconds_both * 1e6:.1f} µs)"
+    )
+
+    if not args.small:
+        many = make_inputs(4000)
+        simulate_tiles(*many)  # warm (excluded)
+        seconds_many = best_time(lambda: simulate_tiles(*many), 3)
+        ns_many = seconds_many / (N_DAYS * 4000) * 1e9
+        report("4,000 tiles: ns per tile-day", ns_many, TARGET_NS_MANY)
+        _stream_inputs(*many[:4])
+        seconds_stream = best_time(lambda: _stream_inputs(*many[:4]), 3)
+        print(
+            f"    (reading the four float64 inputs alone: "
+            f"{seconds_stream / (N_DAYS * 4000) * 1e9:.2f} ns per tile-day)"
+        )
+
+
+if __name__ == "__main__":
+    main()
