@@ -204,9 +204,11 @@ def _builtin_covers() -> dict[str, Cover]:
         description="Evergreen conifer plantation at canopy closure",
         albedo=0.12,               # Oke (1987) via FAO-56 practice: forest 0.12
         height_m=20.0,             # mid-rotation plantation; typical 10-30 m (from memory)
-        rs_s_per_m=100.0,          # dry conifer canopy, typical 60-150 s/m (from memory)
+        rs_s_per_m=150.0,          # dry conifer canopy as a daily bulk value, typical 60-150 s/m
+                                   # (from memory); the upper end, since daily-mean vapour-pressure
+                                   # deficit drives eq. 3 also in hours when stomata are closed
         lai=6.0,                   # conifer plantations 3-10 (from memory)
-        canopy_capacity_mm=1.8,    # Sitka spruce ~1-1.5 mm, Douglas fir 1-2.4 mm (from memory)
+        canopy_capacity_mm=1.5,    # Sitka spruce ~1-1.5 mm, Douglas fir 1-2.4 mm (from memory)
         rooting_depth_m=1.5,       # FAO-56 Table 22, conifer trees 1.0-1.5 m
         depletion_fraction=0.70,   # FAO-56 Table 22, conifer trees
         curve_number={"A": 30, "B": 55, "C": 70, "D": 77},  # TR-55 woods, good (from memory)

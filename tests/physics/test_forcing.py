@@ -106,7 +106,7 @@ def test_forest_wet_canopy_evaporates_much_faster_than_dry(climate):
 
 def test_forest_uses_wind_moved_above_the_canopy(climate):
     # one day recomputed by hand from the documented chain: station wind (10 m, over grass) ->
-    # blending height -> 1.5 h over the forest; FAO-56 eq. 4 there; eq. 3 with rs = 100 s/m
+    # blending height -> 1.5 h over the forest; FAO-56 eq. 4 there; eq. 3 with the cover's rs
     forest = BUILTIN_COVERS["forest"]
     day = climate.daily.iloc[[180]]
     one = stand_in_climate(day, LAT, ELEV, wind_height_m=10.0)
@@ -126,7 +126,7 @@ def test_forest_uses_wind_moved_above_the_canopy(climate):
         r.ea_kpa,
         meteo.atmospheric_pressure(ELEV),
         ra,
-        100.0,
+        forest.rs_s_per_m,
     )
     assert got == pytest.approx(max(expected, 0.0), rel=1e-12)
 
