@@ -52,8 +52,15 @@ def flow_duration_curve(flow_m3s: np.ndarray) -> pd.DataFrame:
     -------
     pandas.DataFrame
         Columns ``exceedance_pct`` [%] and ``flow_m3s`` [m3 s-1]; Q95 is the row at 95 %.
+
+    Notes
+    -----
+    The flow exceeded on p % of days is the (1 - p/100) quantile of the daily flows, linearly
+    interpolated between order statistics (numpy's default quantile rule), from one sort.
     """
-    flows = np.quantile(flow_m3s, 1.0 - FDC_EXCEEDANCE_PCT / 100.0)
+    ordered = np.sort(np.asarray(flow_m3s, dtype=float))
+    position = (1.0 - FDC_EXCEEDANCE_PCT / 100.0) * (len(ordered) - 1)
+    flows = np.interp(position, np.arange(len(ordered)), ordered)
     return pd.DataFrame({"exceedance_pct": FDC_EXCEEDANCE_PCT, "flow_m3s": flows})
 
 
@@ -110,7 +117,7 @@ class PlanOutcome:
     @property
     def q95_m3s(self) -> float:
         """Flow exceeded on 95 % of days [m3 s-1]."""
-        return float(np.quantile(self.flow_m3s.to_numpy(), 0.05))
+        return float(self.fdc["flow_m3s"].to_numpy()[FDC_EXCEEDANCE_PCT == 95.0][0])
 
     @property
     def crosscheck_flag(self) -> bool:
@@ -260,15 +267,10 @@ class Comparison:
         a = mixed.annual
         evap = a["interception_mm"] + a["transpiration_mm"] + a["soil_evap_mm"] + a["open_water_mm"]
         yield_mm = a["quickflow_mm"] + a["drainage_mm"]
-        table = pd.DataFrame({
-            "rain_mm": a["rain_mm"], "evap_mm": evap,
-            "interception_mm": a["interception_mm"], "transpiration_mm": a["transpiration_mm"],
-            "soil_evap_mm": a["soil_evap_mm"], "open_water_mm": a["open_water_mm"],
-            "quickflow_mm": a["quickflow_mm"], "drainage_mm": a["drainage_mm"],
-            "yield_mm": yield_mm, "storage_change_mm": a["storage_change_mm"],
-            "yield_ml": yield_mm * self.tiles.area_km2,
-        }, index=pd.Index(self.tiles.years, name="year"))
-        return table[list(ANNUAL_COLUMNS)]
+        derived = {"evap_mm": evap, "yield_mm": yield_mm, "yield_ml": yield_mm * self.tiles.area_km2}
+        columns = np.column_stack([derived[c] if c in derived else a[c] for c in ANNUAL_COLUMNS])
+        return pd.DataFrame(columns, columns=list(ANNUAL_COLUMNS),
+                            index=pd.Index(self.tiles.years, name="year"))
 
     def change(self, outcome: PlanOutcome, baseline: PlanOutcome | None = None) -> PlanChange:
         """Change of ``outcome`` against ``baseline`` (default: the `current` plan)."""
