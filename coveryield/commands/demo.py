@@ -1,0 +1,45 @@
+"""``coveryield demo [--no-serve] [--port N]``: the demo comparison, then its dashboard."""
+
+from __future__ import annotations
+
+import argparse
+
+
+def add_parser(subparsers) -> None:
+    """Register the ``demo`` command."""
+    from coveryield.serve import DEFAULT_PORT
+
+    parser = subparsers.add_parser(
+        "demo",
+        help="print the demo catchment's plan comparison, then serve its dashboard",
+        description="Compare the plans of the invented demo catchment, print the table, then "
+        "serve its dashboard (read-only unless --manager) on 127.0.0.1 until Ctrl-C.",
+    )
+    parser.add_argument("--no-serve", action="store_true", help="only print the comparison")
+    parser.add_argument("--manager", action="store_true",
+                        help="serve with the manager's controls (save plans, export tables) "
+                             "instead of read-only")
+    parser.add_argument("--port", type=int, default=DEFAULT_PORT,
+                        help=f"port on 127.0.0.1 (default {DEFAULT_PORT})")
+    parser.set_defaults(run=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Print the comparison; serve the dashboard unless --no-serve."""
+    from coveryield.comparison import compare
+    from coveryield.demo import demo_plan_path
+
+    plan = demo_plan_path()
+    result = compare(plan)
+    try:
+        from coveryield.reports import comparison_table
+    except ImportError:  # reports not available in this checkout: the table is skipped
+        comparison_table = None
+    if comparison_table is not None:
+        print(comparison_table(result), flush=True)
+    if args.no_serve:
+        return 0
+    from coveryield.serve import serve
+
+    print(flush=True)
+    return serve(plan, port=args.port, read_only=not args.manager)

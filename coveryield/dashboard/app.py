@@ -1,0 +1,173 @@
+"""The dashboard page: header, caution, controls beside headline figures, then four charts.
+
+:class:`Dashboard` is itself a widget (a ``VBox``): as the last expression of a notebook cell it
+shows itself, and its :attr:`~Dashboard.state` can be driven from Python.
+"""
+
+from __future__ import annotations
+
+import html
+import os
+from pathlib import Path
+from typing import Any
+
+import ipywidgets as widgets
+
+from coveryield.dashboard import palette
+from coveryield.dashboard.exports import CAUTION
+from coveryield.dashboard.state import DashboardState
+from coveryield.dashboard.views import (
+    Charts,
+    ErrorArea,
+    Guard,
+    Headline,
+    ManagerControls,
+    ShareControls,
+)
+from coveryield.serve import PLAN_ENV, READ_ONLY_ENV  # noqa: E402 - light module, no widgets
+
+TRUE_WORDS = ("1", "true", "yes", "on")
+
+
+def _as_comparison(source: Any) -> tuple[Any, Path | None]:
+    """Return a Comparison (given one, a PlanFile or a path) and the plan file path if known."""
+    if hasattr(source, "evaluate") and hasattr(source, "outcome"):
+        return source, _plan_path_of(source.plan_file)
+    import coveryield
+
+    if isinstance(source, (str, os.PathLike)):
+        path = Path(source).resolve()
+        return coveryield.compare(path), path
+    return coveryield.compare(source), _plan_path_of(source)
+
+
+def _plan_path_of(plan_file: Any) -> Path | None:
+    for attr in ("path", "source", "source_path"):
+        value = getattr(plan_file, attr, None)
+        if isinstance(value, (str, os.PathLike)) and str(value):
+            return Path(value)
+    return None
+
+
+class Dashboard(widgets.VBox):
+    """Explore a plan's cover shares and see the water yield change at once.
+
+    Parameters
+    ----------
+    source : Comparison, PlanFile, str or pathlib.Path
+        The plans to explore: a comparison already made, or a plan file (compared here, which
+        runs the daily simulation once).
+    read_only : bool
+        Leave out every control that writes files (stakeholder mode).
+    plan_name : str
+        Plan to start from.
+    plan_path : str or pathlib.Path, optional
+        The plan file's location, where saved plans and exports go (default: taken from
+        ``source``).
+
+    Attributes
+    ----------
+    state : DashboardState
+        The choices and results; set them from Python to drive the page.
+    controls, headline, charts, errors : views
+        The parts of the page; ``manager`` is None in read-only mode.
+    """
+
+    def __init__(self, source: Any, *, read_only: bool = False, plan_name: str = "current",
+                 plan_path: str | os.PathLike | None = None) -> None:
+        comparison, known_path = _as_comparison(source)
+        self.read_only = bool(read_only)
+        self.plan_path = Path(plan_path) if plan_path is not None else known_path
+        self.state = DashboardState(comparison, plan_name)
+        self.guard = Guard(self.state)
+        self.errors = ErrorArea(self.state)
+        self.controls = ShareControls(self.state, self.guard)
+        self.headline = Headline(self.state, self.guard)
+        self.charts = Charts(self.state, self.guard)
+        self.manager = None if self.read_only else ManagerControls(
+            self.state, self.guard, self.plan_path)
+        left = [self.controls.widget] + ([self.manager.widget] if self.manager else [])
+        super().__init__(
+            [
+                self._header(comparison),
+                self._caution(),
+                self.errors.widget,
+                widgets.HBox([widgets.VBox(left, layout=widgets.Layout(flex="0 0 450px")),
+                              self.headline.widget],
+                             layout=widgets.Layout(flex_flow="row wrap", width="100%")),
+                self.charts.widget,
+                self._footer(),
+            ],
+            layout=widgets.Layout(padding="8px 16px", max_width="1280px"),
+        )
+        self.add_class("cy-dashboard")
+
+    @staticmethod
+    def _header(comparison: Any) -> widgets.HTML:
+        catchment = comparison.plan_file.catchment
+        years = list(comparison.years)
+        span = f"{years[0]}\u2013{years[-1]}" if years else ""
+        zones = len(comparison.plan_file.zones)
+        return widgets.HTML(
+            f'<div style="color:{palette.INK}"><div style="font-size:24px;font-weight:600">'
+            f"Water yield of land-cover plans: {html.escape(str(catchment.name))}</div>"
+            f'<div style="color:{palette.MUTED};font-size:13px">'
+            f"{catchment.area_km2:,.1f} km\u00b2 in {zones} zone{'s' if zones != 1 else ''}; "
+            f"daily climate {span}. Move the shares of the covers to see how the mean yield, dry "
+            "years and flows change against the current plan.</div></div>"
+        )
+
+    @staticmethod
+    def _caution() -> widgets.HTML:
+        return widgets.HTML(
+            f'<div class="cy-caution" style="background:{palette.CAUTION_BG};color:{palette.INK};'
+            f'border-left:4px solid {palette.CURRENT};padding:6px 10px;margin:6px 0;'
+            f'font-size:13px"><b>Caution:</b> {html.escape(CAUTION)} '
+            "Figures are means over the climate record; they are not a forecast.</div>"
+        )
+
+    @staticmethod
+    def _footer() -> widgets.HTML:
+        return widgets.HTML(
+            f'<div style="color:{palette.MUTED};font-size:12px;margin-top:6px">Yield: quickflow '
+            "plus drainage leaving the land, as depth over the whole catchment (mm) or volume "
+            "(ML; 1 ML = 1000 m\u00b3). Evaporation check: Zhang et al. (2001) curve and Fu's "
+            f"form of the Budyko framework. {html.escape(CAUTION)}</div>"
+        )
+
+
+def env_read_only(default: bool = False) -> bool:
+    """Read-only flag from the COVERYIELD_READ_ONLY environment variable."""
+    value = os.environ.get(READ_ONLY_ENV)
+    return default if value is None else value.strip().lower() in TRUE_WORDS
+
+
+def env_plan_path() -> Path:
+    """Plan file from the COVERYIELD_PLAN environment variable, else the demo catchment's."""
+    value = os.environ.get(PLAN_ENV)
+    if value:
+        return Path(value)
+    import coveryield
+
+    return Path(coveryield.demo_plan_path())
+
+
+def show_dashboard(plan: Any = None, *, read_only: bool | None = None) -> Dashboard:
+    """Build the dashboard; as the last expression of a cell it shows itself.
+
+    Parameters
+    ----------
+    plan : Comparison, PlanFile, str or pathlib.Path, optional
+        The plans to explore (default: the file named by COVERYIELD_PLAN, else the demo
+        catchment).
+    read_only : bool, optional
+        Leave out the controls that write files (default: COVERYIELD_READ_ONLY, else False).
+
+    Returns
+    -------
+    Dashboard
+        The page, a widget.
+    """
+    source = env_plan_path() if plan is None else plan
+    ro = env_read_only() if read_only is None else bool(read_only)
+    return Dashboard(source, read_only=ro)
