@@ -2,17 +2,7 @@
 
 from __future__ import annotations
 
-import warnings
-
 import pytest
-
-# bqplot's scale package (bqscales) builds a trait the way traitlets deprecates, at import time;
-# the warning is attributed to bqscales, which pyproject's filters do not name yet. Import it once
-# here with that one warning silenced (suggested pyproject filter:
-# "ignore::DeprecationWarning:bqscales.*").
-with warnings.catch_warnings():
-    warnings.filterwarnings("ignore", category=DeprecationWarning, module="bqscales.*")
-    import bqplot  # noqa: F401
 
 
 @pytest.fixture(scope="session")
