@@ -3,7 +3,8 @@
 Two functions, both returning daily series on the climate record's date index:
 
 * :func:`reference_et` - grass (or alfalfa) reference evaporation, FAO-56 eq. 6, computed by the
-  compiled kernel of :mod:`coveryield.physics.fused`.
+  compiled kernel of :mod:`coveryield.physics.fused` for long records and by the equivalent numpy
+  chain for short ones (the two agree to 1e-9 mm/d; see ``tests/physics/test_fused.py``).
 * :func:`cover_evaporation` - the three potential rates the engine needs for one cover: the dry
   canopy, the wet canopy (which drives interception loss) and bare soil.
 
@@ -20,8 +21,12 @@ import numpy as np
 import pandas as pd
 
 from .errors import ClimateFileError
-from .physics.evaporation import aerodynamic_resistance, open_water_evaporation, penman_monteith
-from .physics.fused import reference_et_fused
+from .physics.evaporation import (
+    aerodynamic_resistance,
+    fao56_reference_evaporation,
+    open_water_evaporation,
+    penman_monteith,
+)
 from .physics.meteo import atmospheric_pressure, mean_saturation_vapour_pressure
 from .physics.radiation import (
     clear_sky_radiation,
@@ -36,6 +41,10 @@ REQUIRED_COLUMNS = ("tmax_c", "tmin_c", "ea_kpa", "wind_ms", "rs_mj")
 #: Lowest wind speed used for a cover's aerodynamic resistance, which is infinite in calm air
 #: [m s-1] (FAO-56 advises about 0.5 m s-1 as a lower limit; from memory).
 MIN_WIND_FOR_RESISTANCE_MS = 0.5
+#: Records at least this long use the compiled kernel [days]. Below it the numpy chain takes a
+#: few milliseconds, less than loading the compiler runtime (~0.5 s), which keeps a command-line
+#: start fast.
+COMPILED_MIN_DAYS = 100_000
 #: Output columns of :func:`cover_evaporation`.
 EVAPORATION_COLUMNS = ("dry_mm", "wet_mm", "soil_mm")
 
@@ -73,7 +82,8 @@ def reference_et(climate, method="fao56"):
 
     Notes
     -----
-    Wind is brought to 2 m by FAO-56 eq. 47, then the whole chain runs in the compiled kernel.
+    Wind is brought to 2 m by FAO-56 eq. 47, then the whole chain runs in the compiled kernel
+    (records of :data:`COMPILED_MIN_DAYS` days or more) or in numpy (shorter records).
 
     References
     ----------
@@ -82,7 +92,11 @@ def reference_et(climate, method="fao56"):
     index, col, doy = _daily_inputs(climate)
     site = climate.site
     u2 = wind_speed_at_2m(col["wind_ms"], site.wind_height_m)
-    et0 = reference_et_fused(
+    if len(index) >= COMPILED_MIN_DAYS:
+        from .physics.fused import reference_et_fused as chain
+    else:
+        chain = fao56_reference_evaporation
+    et0 = chain(
         col["tmax_c"],
         col["tmin_c"],
         col["ea_kpa"],

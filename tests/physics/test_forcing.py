@@ -203,3 +203,13 @@ def test_negative_rates_are_clipped_to_zero():
     assert (forcing.reference_et(clim) < 0).all()
     frame = forcing.cover_evaporation(clim, BUILTIN_COVERS["pasture"])
     assert (frame == 0).all().all()
+
+
+@pytest.mark.parametrize("method", ["fao56", "asce-short", "asce-tall"])
+def test_compiled_and_numpy_paths_of_reference_et_agree(climate, monkeypatch, method):
+    # the record length only picks the implementation, never the answer (design property)
+    numpy_path = forcing.reference_et(climate, method)
+    monkeypatch.setattr(forcing, "COMPILED_MIN_DAYS", 1)
+    compiled = forcing.reference_et(climate, method)
+    np.testing.assert_allclose(compiled.to_numpy(), numpy_path.to_numpy(), rtol=0, atol=1e-9)
+    pd.testing.assert_index_equal(compiled.index, numpy_path.index)
