@@ -15,7 +15,11 @@ import numpy as np
 import pandas as pd
 
 from coveryield.climate import Climate, read_climate
-from coveryield.engine.routing import linear_reservoir, mm_per_day_to_m3_per_s
+from coveryield.engine.routing import (
+    mm_per_day_to_m3_per_s,
+    route_series,
+    weighted_column_sum,
+)
 from coveryield.engine.water_balance import TileParameters, simulate_tiles
 from coveryield.errors import PlanFileError
 from coveryield.forcing import cover_evaporation, reference_et
@@ -56,7 +60,8 @@ class TileResults:
     dates : pandas.DatetimeIndex
         Every simulated day.
     daily_yield_mm : numpy.ndarray
-        Quickflow plus drainage, (n_days, n_tiles) [mm d-1 over the tile].
+        Quickflow plus drainage, (n_days, n_tiles), stored column-major so that each tile's
+        series is contiguous for the weighted sums [mm d-1 over the tile].
     monthly_yield_mm : numpy.ndarray
         Mean yield per calendar month over complete years, (12, n_tiles) [mm month-1].
     rain_mean_mm, et0_mean_mm, evap_mean_mm : numpy.ndarray
@@ -168,8 +173,8 @@ def mix_tiles(tiles: TileResults, weights: np.ndarray) -> MixedSeries:
         Catchment results [mm over the catchment; flow in m3 s-1].
     """
     annual = {name: values @ weights for name, values in tiles.annual.items()}
-    daily_yield = tiles.daily_yield_mm @ weights
-    routed_mm = linear_reservoir(daily_yield, tiles.recession_days)
+    daily_yield = weighted_column_sum(tiles.daily_yield_mm, weights)
+    routed_mm = route_series(daily_yield, tiles.recession_days)
     return MixedSeries(
         annual=annual,
         daily_yield_mm=daily_yield,
@@ -339,7 +344,7 @@ def simulate_catchment(plan_file: PlanFile, *, climate: Climate | None = None,
         years=np.asarray(year_values)[keep],
         annual=annual,
         dates=dates,
-        daily_yield_mm=run.daily_yield_mm,
+        daily_yield_mm=np.asfortranarray(run.daily_yield_mm),
         monthly_yield_mm=monthly_means(run.daily_yield_mm[in_complete], dates[in_complete]),
         rain_mean_mm=rain_mean,
         et0_mean_mm=et0_mean,

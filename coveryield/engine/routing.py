@@ -11,21 +11,20 @@ _SECONDS_PER_DAY = 86400.0
 
 
 @njit(cache=True)
-def _route_day(store, inflow, recession_days):
+def _route_day(store, inflow, recession_days, decay):
     """Advance a linear store by one day; return (outflow, store at the end) [mm].
 
     Exact solution of dS/dt = I − max(S, 0)/k with I constant over the day: a store below zero
-    (a deficit left by negative inflow) releases nothing until it refills.
+    (a deficit left by negative inflow) releases nothing until it refills. ``decay`` is
+    exp(−1/k), computed once per series.
     """
     k = recession_days
-    if store >= 0.0 and inflow >= 0.0:
-        end = inflow * k + (store - inflow * k) * math.exp(-1.0 / k)  # S(1), equilibrium I·k
-        return store + inflow - end, end
-    if store >= 0.0:  # draining and losing water: the store may empty within the day
-        empty_at = k * math.log1p(store / (-inflow * k))  # t where S(t) = 0
-        if empty_at >= 1.0:
-            end = inflow * k + (store - inflow * k) * math.exp(-1.0 / k)
+    if store >= 0.0:
+        end = inflow * k + (store - inflow * k) * decay  # S(1), equilibrium I·k
+        if end >= 0.0:  # always so for I >= 0; for I < 0 the store lasts the whole day
             return store + inflow - end, end
+        # losing water (I < 0), the store empties within the day
+        empty_at = k * math.log1p(store / (-inflow * k))  # t where S(t) = 0
         return store + inflow * empty_at, inflow * (1.0 - empty_at)
     if inflow <= 0.0 or store + inflow <= 0.0:  # deficit not refilled today: no outflow
         return 0.0, store + inflow
@@ -36,15 +35,78 @@ def _route_day(store, inflow, recession_days):
 
 
 @njit(cache=True)
-def _route(inflow, recession_days, initial_store, outflow, store):
-    """Route every column of ``inflow`` (n_days, n_series); fill ``outflow`` and ``store``."""
+def _route(inflow, recession_days, initial_store, outflow, store, keep_store):
+    """Route every column of ``inflow`` (n_days, n_series); fill ``outflow`` (and ``store``)."""
     n_days, n_series = inflow.shape
     for j in range(n_series):
         s = initial_store[j]
+        k = recession_days[j]
+        decay = math.exp(-1.0 / k)
+        gain = k * (1.0 - decay)
         for d in range(n_days):
-            q, s = _route_day(s, inflow[d, j], recession_days[j])
+            i = inflow[d, j]
+            end = s * decay + i * gain  # S(1) = I·k + (S0 − I·k)·e^(−1/k), rearranged
+            if s >= 0.0 and end >= 0.0:  # the usual day: the store stays positive
+                q = s + i - end
+                s = end
+            else:
+                q, s = _route_day(s, i, k, decay)
             outflow[d, j] = q
-            store[d, j] = s
+            if keep_store:
+                store[d, j] = s
+
+
+@njit(cache=True)
+def route_series(inflow_mm, recession_days):
+    """Route one daily series, starting from the steady state of its mean inflow.
+
+    The lean form of :func:`linear_reservoir` for one finite series (no checks, no store
+    output), used on every share change.
+
+    Parameters
+    ----------
+    inflow_mm : numpy.ndarray, shape (n_days,)
+        Daily inflow, finite, may be negative [mm d⁻¹].
+    recession_days : float
+        Recession constant k, > 0 [d].
+
+    Returns
+    -------
+    numpy.ndarray, shape (n_days,)
+        Outflow of each day, ≥ 0 [mm d⁻¹].
+    """
+    columns = inflow_mm.reshape(inflow_mm.shape[0], 1)
+    k = np.full(1, recession_days)
+    start = k * max(inflow_mm.mean(), 0.0) if inflow_mm.shape[0] else np.zeros(1)
+    outflow = np.empty_like(columns)
+    _route(columns, k, start, outflow, np.empty((0, 1)), False)
+    return outflow[:, 0]
+
+
+@njit(cache=True)
+def weighted_column_sum(values, weights):
+    """Weighted sum of the columns of a 2-D array, skipping zero weights.
+
+    Parameters
+    ----------
+    values : numpy.ndarray, shape (n_rows, n_columns)
+        Values, fastest in Fortran (column-major) order [any unit].
+    weights : numpy.ndarray, shape (n_columns,)
+        Weight of each column [-].
+
+    Returns
+    -------
+    numpy.ndarray, shape (n_rows,)
+        ``values @ weights`` [unit of ``values``].
+    """
+    out = np.zeros(values.shape[0])
+    for j in range(values.shape[1]):
+        w = weights[j]
+        if w != 0.0:
+            column = values[:, j]
+            for d in range(values.shape[0]):
+                out[d] += w * column[d]
+    return out
 
 
 def linear_reservoir(inflow_mm, recession_days, initial_store_mm=None, *, return_store=False):
@@ -92,7 +154,7 @@ def linear_reservoir(inflow_mm, recession_days, initial_store_mm=None, *, return
     k = np.broadcast_to(np.asarray(recession_days, dtype=np.float64), (n_series,)).copy()
     if not (np.isfinite(k).all() and (k > 0).all()):
         raise ValueError(f"recession_days = {recession_days!r}: expected a finite value > 0 d")
-    if not np.isfinite(columns).all():
+    if not np.isfinite(columns.sum()):  # a finite sum means every value is finite
         raise ValueError("inflow_mm: expected finite values (found NaN or infinity)")
     if initial_store_mm is None:
         mean = columns.mean(axis=0) if columns.shape[0] else np.zeros(n_series)
@@ -101,8 +163,8 @@ def linear_reservoir(inflow_mm, recession_days, initial_store_mm=None, *, return
         start = np.broadcast_to(np.asarray(initial_store_mm, dtype=np.float64), (n_series,))
         start = start.copy()
     outflow = np.empty_like(columns)
-    store = np.empty_like(columns)
-    _route(columns, k, start, outflow, store)
+    store = np.empty_like(columns) if return_store else np.empty((0, n_series))
+    _route(columns, k, start, outflow, store, return_store)
     if one_series:
         outflow, store = outflow[:, 0], store[:, 0]
     return (outflow, store) if return_store else outflow
@@ -127,4 +189,4 @@ def mm_per_day_to_m3_per_s(q_mm, area_km2):
     -----
     Q = q·10⁻³ m × A·10⁶ m² / 86 400 s = q·A / 86.4.
     """
-    return np.asarray(q_mm, dtype=np.float64) * np.asarray(area_km2) * 1000.0 / _SECONDS_PER_DAY
+    return np.asarray(q_mm, dtype=np.float64) * (np.asarray(area_km2) * (1000.0 / _SECONDS_PER_DAY))

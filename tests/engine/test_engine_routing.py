@@ -74,3 +74,23 @@ def test_mm_per_day_to_m3_per_s():
     # 1 mm/d over 86.4 km² is 86,400 m³/d = 1 m³/s (arithmetic)
     assert mm_per_day_to_m3_per_s(1.0, 86.4) == pytest.approx(1.0)
     np.testing.assert_allclose(mm_per_day_to_m3_per_s(np.array([0.0, 2.0]), 43.2), [0.0, 1.0])
+
+
+def test_route_series_matches_linear_reservoir():
+    # the lean single-series form used on share changes gives the general routine's answer
+    from coveryield.engine.routing import route_series
+
+    rng = np.random.default_rng(7)
+    inflow = rng.gamma(0.5, 2.0, 2000) - 0.8  # many negative days, so deficits occur
+    np.testing.assert_allclose(route_series(inflow, 25.0), linear_reservoir(inflow, 25.0),
+                               rtol=0, atol=1e-12)
+
+
+def test_weighted_column_sum_is_a_matrix_vector_product():
+    from coveryield.engine.routing import weighted_column_sum
+
+    rng = np.random.default_rng(3)
+    values = np.asfortranarray(rng.normal(size=(500, 7)))
+    weights = np.array([0.2, 0.0, 0.3, 0.0, 0.5, 0.0, 0.0])
+    np.testing.assert_allclose(weighted_column_sum(values, weights), values @ weights,
+                               rtol=0, atol=1e-12)
