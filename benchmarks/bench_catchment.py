@@ -38,8 +38,12 @@ def main() -> None:
 
     plan_file = load_plan(coveryield.demo_plan_path())
     spec = plan_file.catchment
-    climate = read_climate(spec.climate, latitude_deg=spec.latitude_deg,
-                           elevation_m=spec.elevation_m, wind_height_m=spec.wind_height_m)
+    climate = read_climate(
+        spec.climate,
+        latitude_deg=spec.latitude_deg,
+        elevation_m=spec.elevation_m,
+        wind_height_m=spec.wind_height_m,
+    )
     result = coveryield.compare(plan_file)  # warm-up: compiles or loads the cached kernels
     zone_climates(plan_file, climate)
     shares = plan_file.plans["plant-upper"]
@@ -53,17 +57,23 @@ def main() -> None:
     n_tiles, n_days = len(result.tiles.tiles), len(result.tiles.dates)
     print(f"demo catchment: {n_tiles} tiles x {n_days} days ({len(result.years)} years), warm")
     print(f"full simulation (potential evaporation + daily loop): {full_s * 1e3:9.1f} ms")
-    print(f"whole comparison from the files (coveryield.compare): {compare_s * 1e3:9.1f} ms  "
-          f"target < {WARM_COMPARE_TARGET_S:.0f} s: "
-          f"{'met' if compare_s < WARM_COMPARE_TARGET_S else 'NOT met'}")
+    print(
+        f"whole comparison from the files (coveryield.compare): {compare_s * 1e3:9.1f} ms  "
+        f"target < {WARM_COMPARE_TARGET_S:.0f} s: "
+        f"{'met' if compare_s < WARM_COMPARE_TARGET_S else 'NOT met'}"
+    )
     print(f"share change, weighted sum + routing (mix_tiles):     {mix_s * 1e3:9.3f} ms")
     print(f"share change with every table (Comparison.evaluate):  {evaluate_s * 1e3:9.3f} ms")
     ratio = full_s / mix_s
     verdict = "met" if ratio >= SHARE_CHANGE_TARGET else "NOT met"
-    print(f"  full simulation / share change (weighted sum): {ratio:9,.0f} x   "
-          f"target >= {SHARE_CHANGE_TARGET:,.0f} x: {verdict}")
-    print(f"  full simulation / share change with pandas tables: {full_s / evaluate_s:9,.0f} x   "
-          "(information: building the tables is the dashboard's cost, see bench_dashboard.py)")
+    print(
+        f"  full simulation / share change (weighted sum): {ratio:9,.0f} x   "
+        f"target >= {SHARE_CHANGE_TARGET:,.0f} x: {verdict}"
+    )
+    print(
+        f"  full simulation / share change with pandas tables: {full_s / evaluate_s:9,.0f} x   "
+        "(information: building the tables is the dashboard's cost, see bench_dashboard.py)"
+    )
 
 
 if __name__ == "__main__":

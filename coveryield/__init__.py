@@ -1,4 +1,4 @@
-"""coveryield: what will this planting plan do to our water?
+"""coveryield: what a land-cover plan does to the water a catchment yields.
 
 Screening estimates of how land-cover plans change a catchment's water yield: Penman-Monteith
 evaporation per cover from a daily climate record (FAO-56 meteorology), a daily soil-water balance

@@ -34,8 +34,14 @@ from coveryield.plans import PlanFile
 
 #: Annual flux names kept per tile [mm over the tile per year].
 ANNUAL_FLUXES = (
-    "rain_mm", "interception_mm", "transpiration_mm", "soil_evap_mm", "open_water_mm",
-    "quickflow_mm", "drainage_mm", "storage_change_mm",
+    "rain_mm",
+    "interception_mm",
+    "transpiration_mm",
+    "soil_evap_mm",
+    "open_water_mm",
+    "quickflow_mm",
+    "drainage_mm",
+    "storage_change_mm",
 )
 
 
@@ -153,8 +159,9 @@ class MixedSeries:
     @property
     def crosscheck_flag(self) -> bool:
         """True when model and Zhang-curve evaporation differ by more than the tolerance."""
-        return bool(abs(self.model_evap_mm - self.zhang_evap_mm)
-                    > CROSSCHECK_TOLERANCE * self.zhang_evap_mm)
+        return bool(
+            abs(self.model_evap_mm - self.zhang_evap_mm) > CROSSCHECK_TOLERANCE * self.zhang_evap_mm
+        )
 
 
 def mix_tiles(tiles: TileResults, weights: np.ndarray) -> MixedSeries:
@@ -232,12 +239,16 @@ def zone_climates(plan_file: PlanFile, climate: Climate | None = None) -> dict[s
     spec = plan_file.catchment
     if climate is None:
         climate = read_climate(
-            spec.climate, latitude_deg=spec.latitude_deg, elevation_m=spec.elevation_m,
-            wind_height_m=spec.wind_height_m, coastal=spec.coastal,
+            spec.climate,
+            latitude_deg=spec.latitude_deg,
+            elevation_m=spec.elevation_m,
+            wind_height_m=spec.wind_height_m,
+            coastal=spec.coastal,
         )
     return {
-        zone.name: climate.adjusted(rain_factor=zone.rain_factor,
-                                    temperature_offset_c=zone.temperature_offset_c)
+        zone.name: climate.adjusted(
+            rain_factor=zone.rain_factor, temperature_offset_c=zone.temperature_offset_c
+        )
         for zone in plan_file.zones
     }
 
@@ -266,9 +277,15 @@ def tile_parameters(plan_file: PlanFile, tiles: list[tuple[str, str]]) -> TilePa
     return TileParameters(
         canopy_capacity_mm=np.array([c.canopy_capacity_mm for c in covers]),
         root_zone_capacity_mm=np.array(
-            [1000.0 * c.rooting_depth_m * z.awc_m3_per_m3 for c, z in zip(covers, soils)]),
+            [
+                1000.0 * c.rooting_depth_m * z.awc_m3_per_m3
+                for c, z in zip(covers, soils, strict=True)
+            ]
+        ),
         depletion_fraction=np.array([c.depletion_fraction for c in covers]),
-        curve_number=np.array([c.curve_number[z.soil_group] for c, z in zip(covers, soils)]),
+        curve_number=np.array(
+            [c.curve_number[z.soil_group] for c, z in zip(covers, soils, strict=True)]
+        ),
         is_water=np.array([c.is_water for c in covers]),
         rain_rate_mm_per_h=np.full(n, plan_file.catchment.rain_rate_mm_per_h),
     )
@@ -277,13 +294,17 @@ def tile_parameters(plan_file: PlanFile, tiles: list[tuple[str, str]]) -> TilePa
 def complete_years(dates: pd.DatetimeIndex) -> np.ndarray:
     """Calendar years that the record covers from 1 January to 31 December."""
     counts = pd.Series(1, index=dates).groupby(dates.year).sum()
-    lengths = np.where([pd.Timestamp(year=int(y), month=12, day=31).dayofyear == 366
-                        for y in counts.index], 366, 365)
+    lengths = np.where(
+        [pd.Timestamp(year=int(y), month=12, day=31).dayofyear == 366 for y in counts.index],
+        366,
+        365,
+    )
     return counts.index[counts.to_numpy() == lengths].to_numpy()
 
 
-def simulate_catchment(plan_file: PlanFile, *, climate: Climate | None = None,
-                       progress: bool = False) -> TileResults:
+def simulate_catchment(
+    plan_file: PlanFile, *, climate: Climate | None = None, progress: bool = False
+) -> TileResults:
     """Simulate every tile (each zone x each cover used by any plan) once.
 
     Parameters
@@ -309,8 +330,9 @@ def simulate_catchment(plan_file: PlanFile, *, climate: Climate | None = None,
     n_days = len(dates)
     rain, wet, dry, soil = (np.empty((n_days, len(tiles))) for _ in range(4))
     et0_by_zone = {}
-    for k, (zone, cover_name) in enumerate(tqdm(tiles, desc="potential evaporation per tile",
-                                                unit="tile", disable=not progress)):
+    for k, (zone, cover_name) in enumerate(
+        tqdm(tiles, desc="potential evaporation per tile", unit="tile", disable=not progress)
+    ):
         zone_climate = climates[zone]
         if zone not in et0_by_zone:
             et0_by_zone[zone] = reference_et(zone_climate).to_numpy()
@@ -321,8 +343,9 @@ def simulate_catchment(plan_file: PlanFile, *, climate: Climate | None = None,
         soil[:, k] = rates["soil_mm"].to_numpy()
 
     year_codes, year_values = pd.factorize(dates.year, sort=True)
-    run = simulate_tiles(rain, wet, dry, soil, tile_parameters(plan_file, tiles),
-                         year_codes.astype(np.int64))
+    run = simulate_tiles(
+        rain, wet, dry, soil, tile_parameters(plan_file, tiles), year_codes.astype(np.int64)
+    )
     keep = np.isin(np.asarray(year_values), complete_years(dates))
     if not keep.any():
         raise PlanFileError(
@@ -334,8 +357,9 @@ def simulate_catchment(plan_file: PlanFile, *, climate: Climate | None = None,
     rain_mean = annual["rain_mm"].mean(axis=0)
     et0_mean = np.array([annual_mean(et0_by_zone[zone], dates, in_complete) for zone, _ in tiles])
     evap_mean = run.annual.evap_mm[keep].mean(axis=0)
-    zhang, fu = curve_evaporation(rain_mean, et0_mean, evap_mean,
-                                  [plan_file.covers[cover].base for _, cover in tiles])
+    zhang, fu = curve_evaporation(
+        rain_mean, et0_mean, evap_mean, [plan_file.covers[cover].base for _, cover in tiles]
+    )
     return TileResults(
         tiles=tuple(tiles),
         zone_area_share={zone.name: zone.area_share for zone in plan_file.zones},

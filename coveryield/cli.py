@@ -32,7 +32,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     subparsers = parser.add_subparsers(dest="command", metavar="COMMAND")
     subparsers.required = True
-    for name, module_name in COMMANDS.items():
+    for module_name in COMMANDS.values():
         try:
             module = importlib.import_module(f"coveryield.commands.{module_name}")
         except ModuleNotFoundError as exc:  # a command not built yet in this checkout

@@ -30,8 +30,17 @@ CAUTION = (
 
 #: Columns of the annual table [mm over the catchment per year; yield_ml in ML per year].
 ANNUAL_COLUMNS = (
-    "rain_mm", "evap_mm", "interception_mm", "transpiration_mm", "soil_evap_mm", "open_water_mm",
-    "quickflow_mm", "drainage_mm", "yield_mm", "storage_change_mm", "yield_ml",
+    "rain_mm",
+    "evap_mm",
+    "interception_mm",
+    "transpiration_mm",
+    "soil_evap_mm",
+    "open_water_mm",
+    "quickflow_mm",
+    "drainage_mm",
+    "yield_mm",
+    "storage_change_mm",
+    "yield_ml",
 )
 
 #: Exceedance probabilities at which the flow duration curve is tabulated [%].
@@ -122,18 +131,21 @@ class PlanOutcome:
     @property
     def crosscheck_flag(self) -> bool:
         """True when the daily model and the Zhang curve differ by more than the tolerance."""
-        return bool(abs(self.model_evap_mm - self.zhang_evap_mm)
-                    > CROSSCHECK_TOLERANCE * self.zhang_evap_mm)
+        return bool(
+            abs(self.model_evap_mm - self.zhang_evap_mm) > CROSSCHECK_TOLERANCE * self.zhang_evap_mm
+        )
 
     @property
     def crosscheck_note(self) -> str:
         """One sentence comparing the daily model with the Zhang curve."""
         diff = self.model_evap_mm - self.zhang_evap_mm
         pct = 100.0 * diff / self.zhang_evap_mm
-        verdict = ("differs by more than" if self.crosscheck_flag else "is within")
-        return (f"Daily model evaporation {self.model_evap_mm:.0f} mm/yr vs Zhang curve "
-                f"{self.zhang_evap_mm:.0f} mm/yr ({pct:+.0f} %): {verdict} the "
-                f"{100 * CROSSCHECK_TOLERANCE:.0f} % tolerance.")
+        verdict = "differs by more than" if self.crosscheck_flag else "is within"
+        return (
+            f"Daily model evaporation {self.model_evap_mm:.0f} mm/yr vs Zhang curve "
+            f"{self.zhang_evap_mm:.0f} mm/yr ({pct:+.0f} %): {verdict} the "
+            f"{100 * CROSSCHECK_TOLERANCE:.0f} % tolerance."
+        )
 
 
 @dataclass(frozen=True)
@@ -185,8 +197,9 @@ class Comparison:
     def __init__(self, plan_file: PlanFile, tiles: TileResults):
         self.plan_file = plan_file
         self.tiles = tiles
-        rain = pd.Series(tiles.annual["rain_mm"] @ tiles.weights(plan_file.plans["current"]),
-                         index=tiles.years)
+        rain = pd.Series(
+            tiles.annual["rain_mm"] @ tiles.weights(plan_file.plans["current"]), index=tiles.years
+        )
         n_dry = max(1, int(round(0.1 * len(rain))))
         #: Driest 10 % of complete years by catchment rain (at least one), driest first.
         self.dry_years: list[int] = [int(y) for y in rain.sort_values().index[:n_dry]]
@@ -253,8 +266,9 @@ class Comparison:
             name=name,
             shares={zone: dict(cover_shares) for zone, cover_shares in shares.items()},
             annual=self._annual_table(mixed),
-            monthly_yield_mm=pd.Series(mixed.monthly_yield_mm, index=pd.RangeIndex(1, 13, name="month"),
-                                       name="yield_mm"),
+            monthly_yield_mm=pd.Series(
+                mixed.monthly_yield_mm, index=pd.RangeIndex(1, 13, name="month"), name="yield_mm"
+            ),
             flow_m3s=pd.Series(mixed.flow_m3s, index=self.tiles.dates, name="flow_m3s"),
             fdc=flow_duration_curve(mixed.flow_m3s),
             model_evap_mm=mixed.model_evap_mm,
@@ -267,10 +281,15 @@ class Comparison:
         a = mixed.annual
         evap = a["interception_mm"] + a["transpiration_mm"] + a["soil_evap_mm"] + a["open_water_mm"]
         yield_mm = a["quickflow_mm"] + a["drainage_mm"]
-        derived = {"evap_mm": evap, "yield_mm": yield_mm, "yield_ml": yield_mm * self.tiles.area_km2}
+        derived = {
+            "evap_mm": evap,
+            "yield_mm": yield_mm,
+            "yield_ml": yield_mm * self.tiles.area_km2,
+        }
         columns = np.column_stack([derived[c] if c in derived else a[c] for c in ANNUAL_COLUMNS])
-        return pd.DataFrame(columns, columns=list(ANNUAL_COLUMNS),
-                            index=pd.Index(self.tiles.years, name="year"))
+        return pd.DataFrame(
+            columns, columns=list(ANNUAL_COLUMNS), index=pd.Index(self.tiles.years, name="year")
+        )
 
     def change(self, outcome: PlanOutcome, baseline: PlanOutcome | None = None) -> PlanChange:
         """Change of ``outcome`` against ``baseline`` (default: the `current` plan)."""
@@ -292,16 +311,33 @@ class Comparison:
 
     def annual_table(self) -> pd.DataFrame:
         """Per plan and year: the water balance [mm over the catchment] and yield [ML]."""
-        frames = [self.outcome(name).annual.reset_index().assign(plan=name)
-                  for name in self.plan_names]
+        frames = [
+            self.outcome(name).annual.reset_index().assign(plan=name) for name in self.plan_names
+        ]
         table = pd.concat(frames, ignore_index=True)
-        return table[["plan", "year", "rain_mm", "evap_mm", "quickflow_mm", "drainage_mm",
-                      "yield_mm", "storage_change_mm", "yield_ml", "interception_mm",
-                      "transpiration_mm", "soil_evap_mm", "open_water_mm"]]
+        return table[
+            [
+                "plan",
+                "year",
+                "rain_mm",
+                "evap_mm",
+                "quickflow_mm",
+                "drainage_mm",
+                "yield_mm",
+                "storage_change_mm",
+                "yield_ml",
+                "interception_mm",
+                "transpiration_mm",
+                "soil_evap_mm",
+                "open_water_mm",
+            ]
+        ]
 
     def monthly_table(self) -> pd.DataFrame:
         """Mean yield per calendar month per plan [mm month-1], and change against `current`."""
-        table = pd.DataFrame({name: self.outcome(name).monthly_yield_mm for name in self.plan_names})
+        table = pd.DataFrame(
+            {name: self.outcome(name).monthly_yield_mm for name in self.plan_names}
+        )
         for name in self.plan_names[1:]:
             table[f"{name} change"] = table[name] - table["current"]
         return table
@@ -318,19 +354,31 @@ class Comparison:
         rows = []
         for name in self.plan_names:
             o = self.outcome(name)
-            rows.append({"plan": name, "model_evap_mm": o.model_evap_mm,
-                         "zhang_evap_mm": o.zhang_evap_mm, "fu_evap_mm": o.fu_evap_mm,
-                         "differs": o.crosscheck_flag})
+            rows.append(
+                {
+                    "plan": name,
+                    "model_evap_mm": o.model_evap_mm,
+                    "zhang_evap_mm": o.zhang_evap_mm,
+                    "fu_evap_mm": o.fu_evap_mm,
+                    "differs": o.crosscheck_flag,
+                }
+            )
         return pd.DataFrame(rows)
 
     def cover_crosscheck_table(self) -> pd.DataFrame:
         """Per tile: mean rain, reference evaporation, model and curve evaporation [mm yr-1]."""
         t = self.tiles
-        return pd.DataFrame({
-            "zone": [z for z, _ in t.tiles], "cover": [c for _, c in t.tiles],
-            "rain_mm": t.rain_mean_mm, "et0_mm": t.et0_mean_mm, "model_evap_mm": t.evap_mean_mm,
-            "zhang_evap_mm": t.zhang_evap_mm, "fu_evap_mm": t.fu_evap_mm,
-        })
+        return pd.DataFrame(
+            {
+                "zone": [z for z, _ in t.tiles],
+                "cover": [c for _, c in t.tiles],
+                "rain_mm": t.rain_mean_mm,
+                "et0_mm": t.et0_mean_mm,
+                "model_evap_mm": t.evap_mean_mm,
+                "zhang_evap_mm": t.zhang_evap_mm,
+                "fu_evap_mm": t.fu_evap_mm,
+            }
+        )
 
     def summary(self) -> dict:
         """Headline figures per plan, JSON-ready: ``{"plans": {NAME: {...}}, ...}``."""
@@ -338,29 +386,44 @@ class Comparison:
         for name in self.plan_names:
             o = self.outcome(name)
             entry = {
-                "mean_yield_mm": o.mean_yield_mm, "mean_yield_ml": o.mean_yield_ml,
-                "mean_flow_m3s": o.mean_flow_m3s, "q95_m3s": o.q95_m3s,
+                "mean_yield_mm": o.mean_yield_mm,
+                "mean_yield_ml": o.mean_yield_ml,
+                "mean_flow_m3s": o.mean_flow_m3s,
+                "q95_m3s": o.q95_m3s,
                 "mean_evap_mm": float(o.annual["evap_mm"].mean()),
-                "zhang_evap_mm": o.zhang_evap_mm, "fu_evap_mm": o.fu_evap_mm,
+                "zhang_evap_mm": o.zhang_evap_mm,
+                "fu_evap_mm": o.fu_evap_mm,
                 "crosscheck_differs": o.crosscheck_flag,
             }
             if name != "current":
                 c = self.change(o)
-                entry.update({
-                    "change_mm": c.yield_mm, "change_pct": c.yield_pct, "change_ml": c.yield_ml,
-                    "dry_year_change_mm": c.dry10_mm, "driest_year_change_mm": c.driest_year_mm,
-                    "q95_change_m3s": c.q95_m3s, "q95_change_pct": c.q95_pct,
-                })
+                entry.update(
+                    {
+                        "change_mm": c.yield_mm,
+                        "change_pct": c.yield_pct,
+                        "change_ml": c.yield_ml,
+                        "dry_year_change_mm": c.dry10_mm,
+                        "driest_year_change_mm": c.driest_year_mm,
+                        "q95_change_m3s": c.q95_m3s,
+                        "q95_change_pct": c.q95_pct,
+                    }
+                )
             plans[name] = entry
         spec = self.plan_file.catchment
         return {
-            "catchment": {"name": spec.name, "area_km2": spec.area_km2,
-                          "years": [int(self.years[0]), int(self.years[-1])],
-                          "n_years": int(len(self.years))},
+            "catchment": {
+                "name": spec.name,
+                "area_km2": spec.area_km2,
+                "years": [int(self.years[0]), int(self.years[-1])],
+                "n_years": int(len(self.years)),
+            },
             "dry_years": self.dry_years,
             "crosscheck_tolerance_pct": 100 * CROSSCHECK_TOLERANCE,
-            "units": {"mm": "mm per year over the whole catchment", "ml": "ML per year",
-                      "m3s": "m3 per second"},
+            "units": {
+                "mm": "mm per year over the whole catchment",
+                "ml": "ML per year",
+                "m3s": "m3 per second",
+            },
             "caution": CAUTION,
             "plans": plans,
         }

@@ -28,17 +28,32 @@ SOIL_GROUPS = ("A", "B", "C", "D")
 
 #: Per parameter: (unit, typical range, source). Shown in docs and in ``coveryield covers``.
 PARAMETER_INFO: dict[str, tuple[str, str, str]] = {
-    "albedo": ("-", "forest 0.05-0.15, grass 0.17-0.28, crops 0.16-0.26, water 0.05-0.08",
-               "Oke (1987); FAO-56 reference 0.23"),
-    "height_m": ("m", "conifer plantation 10-30, pasture 0.10-0.30, cereals 1-2",
-                 "FAO-56 Table 12 (from memory for forest range)"),
-    "rs_s_per_m": ("s m-1", "forest 60-150, grass 70 (reference), crops 30-50 at full cover",
-                   "FAO-56 eq. 5 and reference surface; forest and crop ranges from memory"),
+    "albedo": (
+        "-",
+        "forest 0.05-0.15, grass 0.17-0.28, crops 0.16-0.26, water 0.05-0.08",
+        "Oke (1987); FAO-56 reference 0.23",
+    ),
+    "height_m": (
+        "m",
+        "conifer plantation 10-30, pasture 0.10-0.30, cereals 1-2",
+        "FAO-56 Table 12 (from memory for forest range)",
+    ),
+    "rs_s_per_m": (
+        "s m-1",
+        "forest 60-150, grass 70 (reference), crops 30-50 at full cover",
+        "FAO-56 eq. 5 and reference surface; forest and crop ranges from memory",
+    ),
     "lai": ("m2 m-2", "conifer 3-10, grass 2-4, crops 3-6", "from memory"),
-    "canopy_capacity_mm": ("mm", "conifer 0.8-2.0, grass 0.5-1, crops ~0.2 per unit LAI",
-                           "Calder (1990); Dickinson (1984); from memory"),
-    "rooting_depth_m": ("m", "conifer 1.0-1.5, pasture 0.5-1.5, cereals 1.0-1.5",
-                        "FAO-56 Table 22"),
+    "canopy_capacity_mm": (
+        "mm",
+        "conifer 0.8-2.0, grass 0.5-1, crops ~0.2 per unit LAI",
+        "Calder (1990); Dickinson (1984); from memory",
+    ),
+    "rooting_depth_m": (
+        "m",
+        "conifer 1.0-1.5, pasture 0.5-1.5, cereals 1.0-1.5",
+        "FAO-56 Table 22",
+    ),
     "depletion_fraction": ("-", "conifer 0.70, pasture 0.60, cereals 0.55", "FAO-56 Table 22"),
     "curve_number": ("-", "soil groups A-D, 30-100", "USDA-SCS TR-55 Table 2-2 (from memory)"),
     "fallow_kc": ("-", "bare soil 0.3-1.1 depending on wetting", "FAO-56 Kc ini (from memory)"),
@@ -104,12 +119,16 @@ class KcCalendar(BaseModel):
             True where the crop is in the field.
         """
         doy = np.asarray(doy, dtype=np.int64)
-        planting = self.planting_doy_north + (182 if latitude_deg is not None and latitude_deg < 0 else 0)
+        planting = self.planting_doy_north + (
+            182 if latitude_deg is not None and latitude_deg < 0 else 0
+        )
         day = (doy - planting) % 365  # days since planting, 0-based, wrapping over new year
         l_ini, l_dev, l_mid, l_late = self.stage_days
         # FAO-56 eq. 66: linear between stage values in the development and late stages
-        knots_day = np.array([0, l_ini, l_ini + l_dev, l_ini + l_dev + l_mid,
-                              l_ini + l_dev + l_mid + l_late], dtype=float)
+        knots_day = np.array(
+            [0, l_ini, l_ini + l_dev, l_ini + l_dev + l_mid, l_ini + l_dev + l_mid + l_late],
+            dtype=float,
+        )
         knots_kc = np.array([self.kc_ini, self.kc_ini, self.kc_mid, self.kc_mid, self.kc_end])
         kc = np.interp(day, knots_day, knots_kc)
         in_season = day < self.season_days
@@ -175,7 +194,9 @@ class Cover(BaseModel):
         missing = [g for g in SOIL_GROUPS if g not in value]
         extra = [g for g in value if g not in SOIL_GROUPS]
         if missing or extra:
-            raise ValueError(f"needs exactly the soil groups A, B, C, D; missing {missing}, unknown {extra}")
+            raise ValueError(
+                f"needs exactly the soil groups A, B, C, D; missing {missing}, unknown {extra}"
+            )
         bad = {g: cn for g, cn in value.items() if not 30.0 <= cn <= 100.0}
         if bad:
             raise ValueError(f"curve numbers must lie in 30-100, got {bad}")
@@ -187,7 +208,9 @@ class Cover(BaseModel):
             if self.height_m <= 0.0:
                 raise ValueError(f"a {self.base} cover needs height_m > 0, got {self.height_m}")
             if self.rooting_depth_m <= 0.0:
-                raise ValueError(f"a {self.base} cover needs rooting_depth_m > 0, got {self.rooting_depth_m}")
+                raise ValueError(
+                    f"a {self.base} cover needs rooting_depth_m > 0, got {self.rooting_depth_m}"
+                )
         if self.base == "crop" and self.kc_calendar is None:
             raise ValueError("a crop cover needs a kc_calendar")
         return self
@@ -200,51 +223,59 @@ class Cover(BaseModel):
 
 def _builtin_covers() -> dict[str, Cover]:
     forest = Cover(
-        name="forest", base="forest",
+        name="forest",
+        base="forest",
         description="Evergreen conifer plantation at canopy closure",
-        albedo=0.12,               # Oke (1987) via FAO-56 practice: forest 0.12
-        height_m=20.0,             # mid-rotation plantation; typical 10-30 m (from memory)
-        rs_s_per_m=150.0,          # dry conifer canopy as a daily bulk value, typical 60-150 s/m
-                                   # (from memory); the upper end, since daily-mean vapour-pressure
-                                   # deficit drives eq. 3 also in hours when stomata are closed
-        lai=6.0,                   # conifer plantations 3-10 (from memory)
-        canopy_capacity_mm=1.5,    # Sitka spruce ~1-1.5 mm, Douglas fir 1-2.4 mm (from memory)
-        rooting_depth_m=1.5,       # FAO-56 Table 22, conifer trees 1.0-1.5 m
-        depletion_fraction=0.70,   # FAO-56 Table 22, conifer trees
+        albedo=0.12,  # Oke (1987) via FAO-56 practice: forest 0.12
+        height_m=20.0,  # mid-rotation plantation; typical 10-30 m (from memory)
+        rs_s_per_m=150.0,  # dry conifer canopy as a daily bulk value, typical 60-150 s/m
+        # (from memory); the upper end, since daily-mean vapour-pressure
+        # deficit drives eq. 3 also in hours when stomata are closed
+        lai=6.0,  # conifer plantations 3-10 (from memory)
+        canopy_capacity_mm=1.5,  # Sitka spruce ~1-1.5 mm, Douglas fir 1-2.4 mm (from memory)
+        rooting_depth_m=1.5,  # FAO-56 Table 22, conifer trees 1.0-1.5 m
+        depletion_fraction=0.70,  # FAO-56 Table 22, conifer trees
         curve_number={"A": 30, "B": 55, "C": 70, "D": 77},  # TR-55 woods, good (from memory)
     )
     pasture = Cover(
-        name="pasture", base="pasture",
+        name="pasture",
+        base="pasture",
         description="Grazed grass pasture, rotated grazing",
-        albedo=0.23,               # FAO-56 reference grass
-        height_m=0.15,             # FAO-56 Table 12, rotated grazing 0.15-0.30 m
-        rs_s_per_m=70.0,           # FAO-56 reference surface (eq. 5 with LAI = 24 h)
-        lai=2.88,                  # FAO-56 reference grass LAI = 24 x 0.12
-        canopy_capacity_mm=0.5,    # grass 0.5-1 mm, ~0.2 mm per unit LAI (Dickinson 1984)
-        rooting_depth_m=0.8,       # FAO-56 Table 22, grazing pasture 0.5-1.5 m
-        depletion_fraction=0.60,   # FAO-56 Table 22, grazing pasture
+        albedo=0.23,  # FAO-56 reference grass
+        height_m=0.15,  # FAO-56 Table 12, rotated grazing 0.15-0.30 m
+        rs_s_per_m=70.0,  # FAO-56 reference surface (eq. 5 with LAI = 24 h)
+        lai=2.88,  # FAO-56 reference grass LAI = 24 x 0.12
+        canopy_capacity_mm=0.5,  # grass 0.5-1 mm, ~0.2 mm per unit LAI (Dickinson 1984)
+        rooting_depth_m=0.8,  # FAO-56 Table 22, grazing pasture 0.5-1.5 m
+        depletion_fraction=0.60,  # FAO-56 Table 22, grazing pasture
         curve_number={"A": 39, "B": 61, "C": 74, "D": 80},  # TR-55 pasture, good (from memory)
     )
     crop = Cover(
-        name="crop", base="crop",
+        name="crop",
+        base="crop",
         description="Spring cereal (wheat/barley), one crop a year, bare soil between",
-        albedo=0.23,               # cereals 0.16-0.26 (Oke 1987)
-        height_m=1.0,              # FAO-56 Table 12, spring wheat
-        rs_s_per_m=50.0,           # crops 30-50 s/m at full cover (from memory)
-        lai=4.0,                   # cereals 4-6 (from memory)
-        canopy_capacity_mm=1.0,    # ~0.2 mm per unit LAI (Dickinson 1984)
-        rooting_depth_m=1.2,       # FAO-56 Table 22, spring wheat 1.0-1.5 m
-        depletion_fraction=0.55,   # FAO-56 Table 22, spring wheat
+        albedo=0.23,  # cereals 0.16-0.26 (Oke 1987)
+        height_m=1.0,  # FAO-56 Table 12, spring wheat
+        rs_s_per_m=50.0,  # crops 30-50 s/m at full cover (from memory)
+        lai=4.0,  # cereals 4-6 (from memory)
+        canopy_capacity_mm=1.0,  # ~0.2 mm per unit LAI (Dickinson 1984)
+        rooting_depth_m=1.2,  # FAO-56 Table 22, spring wheat 1.0-1.5 m
+        depletion_fraction=0.55,  # FAO-56 Table 22, spring wheat
         curve_number={"A": 67, "B": 78, "C": 85, "D": 89},  # TR-55 row crops, good (from memory)
         kc_calendar=KcCalendar(),  # FAO-56 Tables 11-12, spring wheat 20/25/60/30 d, 0.3/1.15/0.25
-        fallow_kc=0.4,             # FAO-56 Kc ini for bare soil with infrequent wetting (from memory)
+        fallow_kc=0.4,  # FAO-56 Kc ini for bare soil with infrequent wetting (from memory)
     )
     water = Cover(
-        name="water", base="water",
+        name="water",
+        base="water",
         description="Open water: reservoir, lake or pond",
-        albedo=0.08,               # open water, daily mean (Oke 1987 via secondary source)
-        height_m=0.0, rs_s_per_m=0.0, lai=0.0, canopy_capacity_mm=0.0,
-        rooting_depth_m=0.0, depletion_fraction=0.0,
+        albedo=0.08,  # open water, daily mean (Oke 1987 via secondary source)
+        height_m=0.0,
+        rs_s_per_m=0.0,
+        lai=0.0,
+        canopy_capacity_mm=0.0,
+        rooting_depth_m=0.0,
+        depletion_fraction=0.0,
         curve_number={"A": 100, "B": 100, "C": 100, "D": 100},
     )
     return {c.name: c for c in (forest, pasture, crop, water)}
@@ -254,8 +285,12 @@ def _builtin_covers() -> dict[str, Cover]:
 BUILTIN_COVERS: dict[str, Cover] = _builtin_covers()
 
 
-def derive_cover(name: str, base: str | Cover, overrides: dict | None = None,
-                 covers: dict[str, Cover] | None = None) -> Cover:
+def derive_cover(
+    name: str,
+    base: str | Cover,
+    overrides: dict | None = None,
+    covers: dict[str, Cover] | None = None,
+) -> Cover:
     """Define a new cover from a built-in (or already defined) cover and parameter overrides.
 
     Parameters

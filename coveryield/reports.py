@@ -16,8 +16,15 @@ from coveryield.comparison import CAUTION, Comparison
 from coveryield.errors import OutputError
 
 #: Files written by :func:`write_outputs`, in order.
-OUTPUT_FILES = ("annual.csv", "summary.json", "monthly.csv", "flow_duration.csv",
-                "crosscheck.csv", "tiles.csv", "README.txt")
+OUTPUT_FILES = (
+    "annual.csv",
+    "summary.json",
+    "monthly.csv",
+    "flow_duration.csv",
+    "crosscheck.csv",
+    "tiles.csv",
+    "README.txt",
+)
 
 
 def _signed(value: float, digits: int = 1) -> str:
@@ -28,7 +35,7 @@ def _signed(value: float, digits: int = 1) -> str:
 
 
 def comparison_table(result: Comparison) -> str:
-    """A readable plain-text comparison of every plan against `current`.
+    """Format a readable plain-text comparison of every plan against `current`.
 
     Parameters
     ----------
@@ -48,22 +55,30 @@ def comparison_table(result: Comparison) -> str:
         + ", ".join(str(y) for y in sorted(result.dry_years)),
         "",
     ]
-    header = (f"{'plan':<24}{'yield':>9}{'yield':>10}{'flow':>8}{'change':>9}{'change':>8}"
-              f"{'change':>10}{'dry 10%':>9}{'driest':>9}{'Q95':>8}{'Q95':>8}{'evap':>7}{'Zhang':>7}")
-    units = (f"{'':<24}{'mm/yr':>9}{'ML/yr':>10}{'m3/s':>8}{'mm/yr':>9}{'%':>8}"
-             f"{'ML/yr':>10}{'mm/yr':>9}{'mm/yr':>9}{'m3/s':>8}{'chg %':>8}{'mm/yr':>7}{'mm/yr':>7}")
+    header = (
+        f"{'plan':<24}{'yield':>9}{'yield':>10}{'flow':>8}{'change':>9}{'change':>8}"
+        f"{'change':>10}{'dry 10%':>9}{'driest':>9}{'Q95':>8}{'Q95':>8}{'evap':>7}{'Zhang':>7}"
+    )
+    units = (
+        f"{'':<24}{'mm/yr':>9}{'ML/yr':>10}{'m3/s':>8}{'mm/yr':>9}{'%':>8}"
+        f"{'ML/yr':>10}{'mm/yr':>9}{'mm/yr':>9}{'m3/s':>8}{'chg %':>8}{'mm/yr':>7}{'mm/yr':>7}"
+    )
     lines += [header, units, "-" * len(header)]
     for name in result.plan_names:
         o = result.outcome(name)
-        row = (f"{name[:23]:<24}{o.mean_yield_mm:>9.0f}{o.mean_yield_ml:>10,.0f}"
-               f"{o.mean_flow_m3s:>8.3f}")
+        row = (
+            f"{name[:23]:<24}{o.mean_yield_mm:>9.0f}{o.mean_yield_ml:>10,.0f}"
+            f"{o.mean_flow_m3s:>8.3f}"
+        )
         if name == "current":
             row += f"{'':>9}{'':>8}{'':>10}{'':>9}{'':>9}{o.q95_m3s:>8.3f}{'':>8}"
         else:
             c = result.change(o)
-            row += (f"{_signed(c.yield_mm):>9}{_signed(c.yield_pct):>8}{_signed(c.yield_ml, 0):>10}"
-                    f"{_signed(c.dry10_mm):>9}{_signed(c.driest_year_mm):>9}{o.q95_m3s:>8.3f}"
-                    f"{_signed(c.q95_pct, 0):>8}")
+            row += (
+                f"{_signed(c.yield_mm):>9}{_signed(c.yield_pct):>8}{_signed(c.yield_ml, 0):>10}"
+                f"{_signed(c.dry10_mm):>9}{_signed(c.driest_year_mm):>9}{o.q95_m3s:>8.3f}"
+                f"{_signed(c.q95_pct, 0):>8}"
+            )
         flag = " *" if o.crosscheck_flag else ""
         row += f"{o.model_evap_mm:>7.0f}{o.zhang_evap_mm:>7.0f}{flag}"
         lines.append(row)
@@ -81,20 +96,22 @@ def comparison_table(result: Comparison) -> str:
 
 
 def _readme_text(result: Comparison) -> str:
-    return "\n".join([
-        f"coveryield comparison: {result.plan_file.catchment.name}",
-        f"plan file: {result.plan_file.source}",
-        "",
-        "annual.csv        per plan and year; mm over the whole catchment, yield_ml in ML",
-        "summary.json      mean annual yield (mm, ML/yr, m3/s) and changes against `current`",
-        "monthly.csv       mean yield per calendar month, mm/month, and change",
-        "flow_duration.csv streamflow (m3/s) exceeded on a given % of days, per plan",
-        "crosscheck.csv    mean annual evaporation: daily model vs Zhang (2001) and Fu (1981)",
-        "tiles.csv         the same per zone and cover (tile), with mean rain and ET0",
-        "",
-        f"CAUTION: {CAUTION}",
-        "",
-    ])
+    return "\n".join(
+        [
+            f"coveryield comparison: {result.plan_file.catchment.name}",
+            f"plan file: {result.plan_file.source}",
+            "",
+            "annual.csv        per plan and year; mm over the whole catchment, yield_ml in ML",
+            "summary.json      mean annual yield (mm, ML/yr, m3/s) and changes against `current`",
+            "monthly.csv       mean yield per calendar month, mm/month, and change",
+            "flow_duration.csv streamflow (m3/s) exceeded on a given % of days, per plan",
+            "crosscheck.csv    mean annual evaporation: daily model vs Zhang (2001) and Fu (1981)",
+            "tiles.csv         the same per zone and cover (tile), with mean rain and ET0",
+            "",
+            f"CAUTION: {CAUTION}",
+            "",
+        ]
+    )
 
 
 def _write_all(result: Comparison, folder: Path) -> None:

@@ -15,11 +15,14 @@ def add_parser(subparsers) -> None:
         "`current`: mean annual yield, dry years, seasons, low flows, curve cross-check.",
     )
     parser.add_argument("plan", metavar="PLAN.toml", help="plan file (TOML)")
-    parser.add_argument("--out", metavar="DIR",
-                        help="write annual.csv, summary.json and more tables into DIR "
-                             "(a new or empty folder)")
-    parser.add_argument("--force", action="store_true",
-                        help="replace earlier coveryield outputs in a non-empty DIR")
+    parser.add_argument(
+        "--out",
+        metavar="DIR",
+        help="write annual.csv, summary.json and more tables into DIR (a new or empty folder)",
+    )
+    parser.add_argument(
+        "--force", action="store_true", help="replace earlier coveryield outputs in a non-empty DIR"
+    )
     parser.set_defaults(run=run)
 
 
@@ -32,6 +35,8 @@ def run(args: argparse.Namespace) -> int:
     print(comparison_table(result))
     if args.out:
         out = write_outputs(result, args.out, force=args.force)
-        print(f"\nwrote {out}/ (annual.csv, summary.json, monthly.csv, flow_duration.csv, "
-              "crosscheck.csv, tiles.csv)")
+        print(
+            f"\nwrote {out}/ (annual.csv, summary.json, monthly.csv, flow_duration.csv, "
+            "crosscheck.csv, tiles.csv)"
+        )
     return 0

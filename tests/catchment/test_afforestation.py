@@ -37,8 +37,10 @@ def test_full_conversion_proportional_loss_near_farley(afforestation):
 def test_response_is_linear_in_share(afforestation):
     # Tiles are mixed by area weights, so the change is exactly proportional to the share
     # converted (a property of the design, no source needed).
-    changes = [afforestation.change(afforestation.outcome(p)).yield_mm
-               for p in ("forest-10", "forest-50", "forest-100")]
+    changes = [
+        afforestation.change(afforestation.outcome(p)).yield_mm
+        for p in ("forest-10", "forest-50", "forest-100")
+    ]
     assert changes[0] == pytest.approx(0.1 * changes[2], rel=1e-9)
     assert changes[1] == pytest.approx(0.5 * changes[2], rel=1e-9)
 

@@ -82,10 +82,10 @@ share = st.floats(0.0, 1.0)
 def test_any_shares_summing_to_one_conserve_mass(demo_result, raw):
     covers = ["pasture", "forest", "water"]
     shares = {}
-    for zone, values in zip(demo_result.zone_names, raw):
+    for zone, values in zip(demo_result.zone_names, raw, strict=True):
         values = np.asarray(values) + 1e-3
         values = values / values.sum()
-        shares[zone] = dict(zip(covers, values.tolist()))
+        shares[zone] = dict(zip(covers, values.tolist(), strict=True))
         shares[zone][covers[-1]] = 1.0 - sum(values[:-1])
     a = demo_result.evaluate(shares).annual
     residual = a["rain_mm"] - a["evap_mm"] - a["yield_mm"] - a["storage_change_mm"]
@@ -94,18 +94,33 @@ def test_any_shares_summing_to_one_conserve_mass(demo_result, raw):
 
 def test_bad_shares_are_refused_with_plan_zone_and_sum(demo_result):
     with pytest.raises(PlanFileError, match=r"upper.*0\.9"):
-        demo_result.evaluate({"upper": {"pasture": 0.5, "forest": 0.4},
-                              "middle": {"pasture": 1.0}, "lower": {"pasture": 1.0}})
+        demo_result.evaluate(
+            {
+                "upper": {"pasture": 0.5, "forest": 0.4},
+                "middle": {"pasture": 1.0},
+                "lower": {"pasture": 1.0},
+            }
+        )
 
 
 def test_compare_command_writes_the_tables(tmp_path, capsys):
     out = tmp_path / "results"
     assert main(["compare", str(DEMO / "plans.toml"), "--out", str(out)]) == 0
     printed = capsys.readouterr().out
-    assert "plant-upper" in printed and "mm/yr" in printed and "CAUTION" in printed
+    for expected in ("plant-upper", "mm/yr", "ML/yr", "CAUTION"):
+        assert expected in printed
     annual = pd.read_csv(out / "annual.csv")
-    assert list(annual.columns[:9]) == ["plan", "year", "rain_mm", "evap_mm", "quickflow_mm",
-                                       "drainage_mm", "yield_mm", "storage_change_mm", "yield_ml"]
+    assert list(annual.columns[:9]) == [
+        "plan",
+        "year",
+        "rain_mm",
+        "evap_mm",
+        "quickflow_mm",
+        "drainage_mm",
+        "yield_mm",
+        "storage_change_mm",
+        "yield_ml",
+    ]
     summary = json.loads((out / "summary.json").read_text())
     assert set(summary["plans"]["current"]) >= {"mean_yield_mm", "mean_yield_ml"}
     for name, entry in summary["plans"].items():
@@ -124,14 +139,24 @@ def test_compare_refuses_a_non_empty_folder_and_leaves_it_alone(tmp_path, capsys
 
 def test_bad_plan_exits_2_with_one_message_and_nothing_written(tmp_path):
     bad = tmp_path / "plans.toml"
-    text = (DEMO / "plans.toml").read_text().replace(
-        "upper = { pasture = 0.12, forest = 0.85, water = 0.03 }",
-        "upper = { pasture = 0.12, forest = 0.95, water = 0.03 }", 1)
+    text = (
+        (DEMO / "plans.toml")
+        .read_text()
+        .replace(
+            "upper = { pasture = 0.12, forest = 0.85, water = 0.03 }",
+            "upper = { pasture = 0.12, forest = 0.95, water = 0.03 }",
+            1,
+        )
+    )
     bad.write_text(text.replace('climate = "climate.csv"', f'climate = "{DEMO / "climate.csv"}"'))
     out = tmp_path / "results"
-    proc = subprocess.run([sys.executable, "-m", "coveryield.cli", "compare", str(bad),
-                           "--out", str(out)], capture_output=True, text=True)
+    proc = subprocess.run(
+        [sys.executable, "-m", "coveryield.cli", "compare", str(bad), "--out", str(out)],
+        capture_output=True,
+        text=True,
+    )
     assert proc.returncode == 2
     assert "Traceback" not in proc.stderr
-    assert "plant-upper" in proc.stderr and "1.1" in proc.stderr
+    assert "plant-upper" in proc.stderr
+    assert "1.1" in proc.stderr
     assert not out.exists()
