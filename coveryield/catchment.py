@@ -15,6 +15,7 @@ import numpy as np
 import pandas as pd
 
 from coveryield.climate import Climate, read_climate
+from coveryield.engine.kernels import ANNUAL_NAMES
 from coveryield.engine.routing import (
     mm_per_day_to_m3_per_s,
     route_series,
@@ -32,17 +33,8 @@ from coveryield.physics.curves import (
 )
 from coveryield.plans import PlanFile
 
-#: Annual flux names kept per tile [mm over the tile per year].
-ANNUAL_FLUXES = (
-    "rain_mm",
-    "interception_mm",
-    "transpiration_mm",
-    "soil_evap_mm",
-    "open_water_mm",
-    "quickflow_mm",
-    "drainage_mm",
-    "storage_change_mm",
-)
+#: Annual flux names kept per tile [mm over the tile per year], in the engine's order.
+ANNUAL_FLUXES = ANNUAL_NAMES
 
 
 @dataclass(frozen=True)
@@ -336,7 +328,9 @@ def simulate_catchment(
         zone_climate = climates[zone]
         if zone not in et0_by_zone:
             et0_by_zone[zone] = reference_et(zone_climate).to_numpy()
-        rates = cover_evaporation(zone_climate, plan_file.covers[cover_name])
+        rates = cover_evaporation(
+            zone_climate, plan_file.covers[cover_name], et0_mm=et0_by_zone[zone]
+        )
         rain[:, k] = zone_climate.daily["rain_mm"].to_numpy()
         wet[:, k] = rates["wet_mm"].to_numpy()
         dry[:, k] = rates["dry_mm"].to_numpy()
