@@ -10,6 +10,7 @@ import math
 import os
 import shutil
 import tempfile
+from collections.abc import Callable
 from pathlib import Path
 
 from coveryield.comparison import CAUTION, Comparison
@@ -124,6 +125,53 @@ def _write_all(result: Comparison, folder: Path) -> None:
     (folder / "README.txt").write_text(_readme_text(result))
 
 
+def _staging_folder(target: Path) -> Path:
+    """Make a hidden temporary folder beside ``target`` (same file system: renames are atomic)."""
+    parent = target.resolve().parent
+    try:
+        parent.mkdir(parents=True, exist_ok=True)
+        return Path(tempfile.mkdtemp(prefix=f".{target.name}-", dir=parent))
+    except OSError as exc:
+        raise OutputError(f"{target}: cannot write here ({exc.strerror})") from None
+
+
+def write_new_folder(target: str | os.PathLike, write: Callable[[Path], None]) -> Path:
+    """Create a NEW folder holding what ``write`` puts in it, all or nothing.
+
+    ``write`` fills a hidden temporary folder beside ``target``, which is then renamed; on any
+    failure the temporary folder is removed and ``target`` does not appear.
+
+    Parameters
+    ----------
+    target : path
+        Folder to create; must not exist.
+    write : callable
+        Called with the temporary folder's path.
+
+    Returns
+    -------
+    pathlib.Path
+        The new folder.
+
+    Raises
+    ------
+    coveryield.errors.OutputError
+        If ``target`` exists or cannot be written.
+    """
+    target = Path(target)
+    if target.exists():
+        raise OutputError(f"{target}: exists already; expected a new folder")
+    staging = _staging_folder(target)
+    try:
+        write(staging)
+        os.rename(staging, target)
+    except OSError as exc:
+        raise OutputError(f"{target}: writing failed ({exc}); nothing was written") from None
+    finally:
+        shutil.rmtree(staging, ignore_errors=True)
+    return target
+
+
 def write_outputs(result: Comparison, out_dir: str | os.PathLike, *, force: bool = False) -> Path:
     """Write the comparison tables into a folder, all or nothing.
 
@@ -158,19 +206,13 @@ def write_outputs(result: Comparison, out_dir: str | os.PathLike, *, force: bool
             f"{out}: folder is not empty; choose a new folder, or pass --force to replace "
             f"earlier coveryield outputs ({', '.join(OUTPUT_FILES)})"
         )
-    parent = out.resolve().parent
-    try:
-        parent.mkdir(parents=True, exist_ok=True)
-        staging = Path(tempfile.mkdtemp(prefix=f".{out.name}-", dir=parent))
-    except OSError as exc:
-        raise OutputError(f"{out}: cannot write here ({exc.strerror})") from None
+    if not out.exists():
+        return write_new_folder(out, lambda folder: _write_all(result, folder))
+    staging = _staging_folder(out)
     try:
         _write_all(result, staging)
-        if not out.exists():
-            staging.rename(out)
-        else:
-            for name in OUTPUT_FILES:
-                os.replace(staging / name, out / name)
+        for name in OUTPUT_FILES:
+            os.replace(staging / name, out / name)
     except OSError as exc:
         raise OutputError(f"{out}: writing outputs failed ({exc}); nothing was changed") from None
     finally:

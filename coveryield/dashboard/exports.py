@@ -8,21 +8,16 @@ from __future__ import annotations
 
 import datetime as dt
 import json
-import os
 import re
-import shutil
-import tempfile
 from collections.abc import Mapping
 from pathlib import Path
 from typing import Any
 
+from coveryield.comparison import CAUTION
 from coveryield.errors import OutputError, PlanFileError
+from coveryield.reports import write_new_folder
 
 PLAN_NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_-]{0,39}")
-CAUTION = (
-    "A screening estimate, to be confirmed by licensed hydrological practice and local "
-    "regulations."
-)
 
 
 def check_plan_name(name: str, existing: list[str]) -> str:
@@ -135,15 +130,10 @@ def export_tables(state: Any, plan_path: Path, label: str = "edited",
     target = plan_path.with_name(f"{plan_path.stem}-export-{safe_label}-{stamp}")
     if target.exists():
         raise OutputError(f"{target}: exists already; wait a second and export again")
-    staging = Path(tempfile.mkdtemp(prefix=".export-", dir=plan_path.parent))
-    try:
-        state.outcome.annual.to_csv(staging / "annual.csv", float_format="%.3f")
-        with open(staging / "summary.json", "w", encoding="utf-8") as handle:
+
+    def write(folder: Path) -> None:
+        state.outcome.annual.to_csv(folder / "annual.csv", float_format="%.3f")
+        with open(folder / "summary.json", "w", encoding="utf-8") as handle:
             json.dump(summary_record(state, label), handle, indent=2, default=float)
-        if target.exists():
-            raise OutputError(f"{target}: exists already; wait a second and export again")
-        os.rename(staging, target)
-    except BaseException:
-        shutil.rmtree(staging, ignore_errors=True)
-        raise
-    return target
+
+    return write_new_folder(target, write)
