@@ -28,15 +28,10 @@ def run(args: argparse.Namespace) -> int:
     """Print the comparison; serve the dashboard unless --no-serve."""
     from coveryield.comparison import compare
     from coveryield.demo import demo_plan_path
+    from coveryield.reports import comparison_table
 
     plan = demo_plan_path()
-    result = compare(plan)
-    try:
-        from coveryield.reports import comparison_table
-    except ImportError:  # reports not available in this checkout: the table is skipped
-        comparison_table = None
-    if comparison_table is not None:
-        print(comparison_table(result), flush=True)
+    print(comparison_table(compare(plan)), flush=True)
     if args.no_serve:
         return 0
     from coveryield.serve import serve
