@@ -16,6 +16,18 @@ quantity it gives up ("too many memory checks"). The per-tile arithmetic is bran
 (``min``/``max`` and selects) for the same reason. ``error_model="numpy"`` removes Python's
 zero-division checks; the caller guarantees that the divisors are positive.
 
+Speed
+-----
+At thousands of tiles the loop is bound by memory traffic as much as by arithmetic: every day
+it reads the four forcing rows, writes the yield row and re-reads the parameters and state of
+every tile, which together barely fit the L2 cache. Hence the lean rows: an open-water tile is
+marked by a negative canopy capacity instead of a flag row; interception and open-water
+evaporation (never both non-zero on one tile) share one running sum; and an invalid input day
+turns the tile's rain sum into NaN instead of counting in a row of its own. The daily outputs
+are written straight from the vectorised tile loop (staging them in state rows and copying them
+out cost a second pass over the tiles every day). All of this leaves each tile's arithmetic, and
+so every result, bit for bit as it was.
+
 Sign convention
 ---------------
 Every flux is a positive depth over the tile [mm d⁻¹] except the water tile's quickflow, which is
@@ -31,10 +43,10 @@ import numpy as np
 from numba import njit
 
 #: Tiles per block of the blocked parameter and state arrays.
-BLOCK = 16
+BLOCK = 32
 
 # Rows of the blocked parameter array.
-P_CAPACITY = 0  # canopy storage capacity [mm]
+P_CAPACITY = 0  # canopy storage capacity [mm]; WATER_CAPACITY marks an open-water tile
 P_INV_RAIN_RATE = 1  # 1 / rainfall intensity [h mm⁻¹]
 P_RETENTION_DRY = 2  # SCS retention S for AMC I [mm]
 P_RETENTION_AVERAGE = 3  # SCS retention S for AMC II [mm]
@@ -42,17 +54,21 @@ P_RETENTION_WET = 4  # SCS retention S for AMC III [mm]
 P_TAW = 5  # total available water [mm]
 P_INV_TAW = 6  # 1 / TAW [mm⁻¹]
 P_INV_READILY_SPAN = 7  # 1 / ((1 − p)·TAW) [mm⁻¹]
-P_WATER = 8  # 1.0 for an open-water tile, else 0.0
-N_PAR = 9
+N_PAR = 8
 
-# Rows of the blocked state array.
+#: Canopy capacity that marks an open-water tile (any negative value does) [mm].
+WATER_CAPACITY = -1.0
+
+# Rows of the blocked state array: the stores, then the running sums of the current year [mm].
 S_CANOPY = 0  # canopy store [mm]
 S_SOIL = 1  # root-zone store above wilting point [mm]
-S_BAD = 2  # days with an invalid input [-]
-S_SUM = 3  # first of the running sums of the current year (same order as the annual rows) [mm]
-S_YIELD = 10  # today's quickflow + drainage [mm d⁻¹]
-S_TODAY = 11  # first of today's fluxes (order of DAILY_NAMES[:7]) [mm d⁻¹]
-N_STATE = 18
+S_RAIN = 2  # rain; NaN once a day of the year had an invalid input
+S_WET_SURFACE = 3  # interception (land tile) or open-water evaporation (water tile)
+S_TRANSPIRATION = 4
+S_SOIL_EVAP = 5
+S_QUICKFLOW = 6
+S_DRAINAGE = 7
+N_STATE = 8
 
 #: Rows of the annual output ``annual[row, year, tile]`` [mm].
 ANNUAL_NAMES = (
@@ -65,7 +81,13 @@ ANNUAL_NAMES = (
     "drainage_mm",
     "storage_change_mm",
 )
-N_SUMS = 7  # the first seven annual rows are sums of daily fluxes
+A_RAIN = 0
+A_INTERCEPTION = 1
+A_TRANSPIRATION = 2
+A_SOIL_EVAP = 3
+A_OPEN_WATER = 4
+A_QUICKFLOW = 5
+A_DRAINAGE = 6
 A_STORAGE_CHANGE = 7
 
 #: Rows of the optional daily output ``daily[row, day, tile]``: fluxes [mm d⁻¹], then end-of-day
@@ -364,20 +386,15 @@ def tile_day(
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _is_valid(x):
-    """Tell whether a value is finite and non-negative."""
-    return (x >= 0.0) & (x < np.inf)
+def _all_valid(a, b, c, d):
+    """Tell whether four values are all finite and non-negative.
 
-
-@njit(cache=True, error_model="numpy", inline="always")
-def _copy_rows(d, st, first_row, n_rows, out, n_tiles):
-    """Copy state rows ``first_row…`` of every tile into ``out[k, d, :]`` (k = 0…n_rows−1)."""
-    for b in range((n_tiles + BLOCK - 1) // BLOCK):
-        t0 = b * BLOCK
-        s0 = b * (N_STATE * BLOCK)
-        for k in range(n_rows):
-            for j in range(min(BLOCK, n_tiles - t0)):
-                out[k, d, t0 + j] = st[s0 + (first_row + k) * BLOCK + j]
+    ``min(a, b, c, d) + (a + b + c + d)·0`` is ≥ 0 exactly when none is negative and none is
+    NaN or infinite (0·inf and 0·NaN are NaN, and NaN ≥ 0 is false); it costs a few vector
+    operations instead of two comparisons per value. (Four finite values above 4e307 whose sum
+    overflows would also be flagged; the caller finds no bad value to name in that case.)
+    """
+    return min(min(a, b), min(c, d)) + (a + b + c + d) * 0.0 >= 0.0
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -389,29 +406,55 @@ def _open_year(y, st, annual, n_tiles):
         for j in range(min(BLOCK, n_tiles - t0)):
             store = st[s0 + S_CANOPY * BLOCK + j] + st[s0 + S_SOIL * BLOCK + j]
             annual[A_STORAGE_CHANGE, y, t0 + j] -= store
-            for k in range(N_SUMS):
-                st[s0 + (S_SUM + k) * BLOCK + j] = 0.0
+            for k in range(S_RAIN, N_STATE):
+                st[s0 + k * BLOCK + j] = 0.0
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _close_year(y, st, annual, n_tiles):
+def _close_year(y, par, st, annual, n_tiles):
     """End year ``y``: write its running sums and add the stores to its storage change."""
     for b in range((n_tiles + BLOCK - 1) // BLOCK):
         t0 = b * BLOCK
+        p0 = b * (N_PAR * BLOCK)
         s0 = b * (N_STATE * BLOCK)
         for j in range(min(BLOCK, n_tiles - t0)):
+            t = t0 + j
             store = st[s0 + S_CANOPY * BLOCK + j] + st[s0 + S_SOIL * BLOCK + j]
-            annual[A_STORAGE_CHANGE, y, t0 + j] += store
-            for k in range(N_SUMS):
-                annual[k, y, t0 + j] += st[s0 + (S_SUM + k) * BLOCK + j]
+            annual[A_STORAGE_CHANGE, y, t] += store
+            annual[A_RAIN, y, t] += st[s0 + S_RAIN * BLOCK + j]
+            wet_surface = st[s0 + S_WET_SURFACE * BLOCK + j]
+            if par[p0 + P_CAPACITY * BLOCK + j] < 0.0:
+                annual[A_OPEN_WATER, y, t] += wet_surface
+            else:
+                annual[A_INTERCEPTION, y, t] += wet_surface
+            annual[A_TRANSPIRATION, y, t] += st[s0 + S_TRANSPIRATION * BLOCK + j]
+            annual[A_SOIL_EVAP, y, t] += st[s0 + S_SOIL_EVAP * BLOCK + j]
+            annual[A_QUICKFLOW, y, t] += st[s0 + S_QUICKFLOW * BLOCK + j]
+            annual[A_DRAINAGE, y, t] += st[s0 + S_DRAINAGE * BLOCK + j]
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _run(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, daily, keep_daily):
-    """Day loop shared by :func:`run_tiles` and :func:`run_tiles_daily` (see there)."""
+def _run(
+    rain,
+    wet,
+    dry,
+    soil_pot,
+    year_index,
+    par,
+    st,
+    annual,
+    daily_yield,
+    daily,
+    keep_yield,
+    keep_daily,
+):
+    """Day loop shared by the ``run_tiles*`` kernels; the two flags are compile-time constants.
+
+    The daily outputs are written straight from the vectorised tile loop: staging them in state
+    rows and copying them out afterwards cost a second pass over the tiles every day.
+    """
     n_days, n_tiles = rain.shape
     n_blocks = (n_tiles + BLOCK - 1) // BLOCK
-    yield_rows = daily_yield.reshape((1, n_days, n_tiles))
     for d in range(n_days):
         y = year_index[d]
         if d == 0 or year_index[d - 1] != y:
@@ -425,13 +468,14 @@ def _run(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, dai
                 w = wet[d, t0 + j]
                 dr = dry[d, t0 + j]
                 sp = soil_pot[d, t0 + j]
-                ok = _is_valid(r) & _is_valid(w) & _is_valid(dr) & _is_valid(sp)
+                ok = _all_valid(r, w, dr, sp)
+                capacity = par[p0 + P_CAPACITY * BLOCK + j]
                 ic, tf, tr, es, ow, qf, dn, c_end, s_end = tile_day(
                     r,
                     w,
                     dr,
                     sp,
-                    par[p0 + P_CAPACITY * BLOCK + j],
+                    capacity,
                     par[p0 + P_INV_RAIN_RATE * BLOCK + j],
                     par[p0 + P_RETENTION_DRY * BLOCK + j],
                     par[p0 + P_RETENTION_AVERAGE * BLOCK + j],
@@ -439,35 +483,32 @@ def _run(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, dai
                     par[p0 + P_TAW * BLOCK + j],
                     par[p0 + P_INV_TAW * BLOCK + j],
                     par[p0 + P_INV_READILY_SPAN * BLOCK + j],
-                    par[p0 + P_WATER * BLOCK + j],
+                    1.0 if capacity < 0.0 else 0.0,
                     st[s0 + S_CANOPY * BLOCK + j],
                     st[s0 + S_SOIL * BLOCK + j],
                 )
                 st[s0 + S_CANOPY * BLOCK + j] = c_end
                 st[s0 + S_SOIL * BLOCK + j] = s_end
-                st[s0 + S_BAD * BLOCK + j] += 0.0 if ok else 1.0
-                st[s0 + (S_SUM + 0) * BLOCK + j] += r
-                st[s0 + (S_SUM + 1) * BLOCK + j] += ic
-                st[s0 + (S_SUM + 2) * BLOCK + j] += tr
-                st[s0 + (S_SUM + 3) * BLOCK + j] += es
-                st[s0 + (S_SUM + 4) * BLOCK + j] += ow
-                st[s0 + (S_SUM + 5) * BLOCK + j] += qf
-                st[s0 + (S_SUM + 6) * BLOCK + j] += dn
-                st[s0 + S_YIELD * BLOCK + j] = qf + dn
+                st[s0 + S_RAIN * BLOCK + j] += r if ok else np.nan
+                st[s0 + S_WET_SURFACE * BLOCK + j] += ic + ow  # one of the two is 0.0
+                st[s0 + S_TRANSPIRATION * BLOCK + j] += tr
+                st[s0 + S_SOIL_EVAP * BLOCK + j] += es
+                st[s0 + S_QUICKFLOW * BLOCK + j] += qf
+                st[s0 + S_DRAINAGE * BLOCK + j] += dn
+                if keep_yield:
+                    daily_yield[d, t0 + j] = qf + dn
                 if keep_daily:
-                    st[s0 + (S_TODAY + 0) * BLOCK + j] = ic
-                    st[s0 + (S_TODAY + 1) * BLOCK + j] = tf
-                    st[s0 + (S_TODAY + 2) * BLOCK + j] = tr
-                    st[s0 + (S_TODAY + 3) * BLOCK + j] = es
-                    st[s0 + (S_TODAY + 4) * BLOCK + j] = ow
-                    st[s0 + (S_TODAY + 5) * BLOCK + j] = qf
-                    st[s0 + (S_TODAY + 6) * BLOCK + j] = dn
-        _copy_rows(d, st, S_YIELD, 1, yield_rows, n_tiles)
-        if keep_daily:
-            _copy_rows(d, st, S_TODAY, 7, daily, n_tiles)
-            _copy_rows(d, st, S_CANOPY, 2, daily[7:], n_tiles)
+                    daily[0, d, t0 + j] = ic
+                    daily[1, d, t0 + j] = tf
+                    daily[2, d, t0 + j] = tr
+                    daily[3, d, t0 + j] = es
+                    daily[4, d, t0 + j] = ow
+                    daily[5, d, t0 + j] = qf
+                    daily[6, d, t0 + j] = dn
+                    daily[7, d, t0 + j] = c_end
+                    daily[8, d, t0 + j] = s_end
         if d == n_days - 1 or year_index[d + 1] != y:
-            _close_year(y, st, annual, n_tiles)
+            _close_year(y, par, st, annual, n_tiles)
 
 
 @njit(cache=True, error_model="numpy")
@@ -483,18 +524,31 @@ def run_tiles(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield
     par : ndarray, shape (n_blocks·N_PAR·BLOCK,)
         Blocked parameters (rows ``P_*``) [various units].
     st : ndarray, shape (n_blocks·N_STATE·BLOCK,)
-        Blocked state (rows ``S_*``): initial stores in, final stores and the count of invalid
-        input days out [mm, -].
+        Blocked state (rows ``S_*``): initial stores in, final stores and the running sums of
+        the last year out [mm].
     annual : ndarray, shape (8, n_years, n_tiles)
-        Zero on entry; annual sums out, rows in the order of :data:`ANNUAL_NAMES` [mm].
-    daily_yield : ndarray, shape (n_days, n_tiles)
-        Quickflow + drainage of each day out [mm d⁻¹].
+        Zero on entry; annual sums out, rows in the order of :data:`ANNUAL_NAMES` [mm]. The
+        rain of a year in which a tile had a negative or non-finite input is NaN.
+    daily_yield : ndarray, shape (n_days, n_tiles), C-contiguous float64 or float32
+        Quickflow + drainage of each day out, rounded to its dtype [mm d⁻¹].
 
     Notes
     -----
     The daily physics is :func:`tile_day`.
     """
-    _run(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, annual, False)
+    _run(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, annual, True, False)
+
+
+@njit(cache=True, error_model="numpy")
+def run_tiles_annual(rain, wet, dry, soil_pot, year_index, par, st, annual):
+    """Run as :func:`run_tiles` does, keeping the annual sums only (no daily yield).
+
+    Parameters
+    ----------
+    rain, wet, dry, soil_pot, year_index, par, st, annual
+        As for :func:`run_tiles`.
+    """
+    _run(rain, wet, dry, soil_pot, year_index, par, st, annual, annual, annual, False, False)
 
 
 @njit(cache=True, error_model="numpy")
@@ -509,7 +563,6 @@ def run_tiles_daily(rain, wet, dry, soil_pot, year_index, par, st, annual, daily
 
     Notes
     -----
-    A separate kernel rather than a run-time flag keeps the fast kernel free of the extra
-    stores.
+    Separate kernels rather than run-time flags keep the fast kernel free of the extra stores.
     """
-    _run(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, daily, True)
+    _run(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, daily, True, True)

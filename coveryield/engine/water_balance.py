@@ -245,7 +245,7 @@ def _kernel_parameters(params: TileParameters) -> np.ndarray:
     taw = np.where(water, 1.0, params.root_zone_capacity_mm)
     cn = np.where(water, 100.0, params.curve_number)
     rows = [None] * kernels.N_PAR
-    rows[kernels.P_CAPACITY] = np.where(water, 0.0, params.canopy_capacity_mm)
+    rows[kernels.P_CAPACITY] = np.where(water, kernels.WATER_CAPACITY, params.canopy_capacity_mm)
     rows[kernels.P_INV_RAIN_RATE] = 1.0 / params.rain_rate_mm_per_h
     rows[kernels.P_RETENTION_DRY] = retention_mm(dry_curve_number(cn))
     rows[kernels.P_RETENTION_AVERAGE] = retention_mm(cn)
@@ -253,7 +253,6 @@ def _kernel_parameters(params: TileParameters) -> np.ndarray:
     rows[kernels.P_TAW] = taw
     rows[kernels.P_INV_TAW] = 1.0 / taw
     rows[kernels.P_INV_READILY_SPAN] = 1.0 / ((1.0 - params.depletion_fraction) * taw)
-    rows[kernels.P_WATER] = water.astype(np.float64)
     return kernels.pack_blocks(rows)
 
 
@@ -374,8 +373,9 @@ class TileRun:
     ----------
     annual : TileAnnual
         Annual sums per tile [mm].
-    daily_yield_mm : ndarray, shape (n_days, n_tiles)
-        Quickflow + drainage of each day [mm d⁻¹].
+    daily_yield_mm : ndarray, shape (n_days, n_tiles), or None
+        Quickflow + drainage of each day (float64, or float32 if asked) [mm d⁻¹]; None with
+        ``keep_daily_yield=False``.
     daily : dict of str to ndarray, or None
         With ``keep_daily``: every daily flux [mm d⁻¹] (``interception_mm``,
         ``throughfall_mm``, ``transpiration_mm``, ``soil_evap_mm``, ``open_water_mm``,
@@ -384,7 +384,7 @@ class TileRun:
     """
 
     annual: TileAnnual
-    daily_yield_mm: np.ndarray
+    daily_yield_mm: np.ndarray | None
     daily: dict[str, np.ndarray] | None = None
 
 
@@ -397,6 +397,9 @@ def simulate_tiles(
     year_index,
     *,
     keep_daily: bool = False,
+    keep_daily_yield: bool = True,
+    daily_dtype=None,
+    out: np.ndarray | None = None,
 ) -> TileRun:
     """Run the daily water balance of many tiles.
 
@@ -416,7 +419,19 @@ def simulate_tiles(
     year_index : array_like of int, shape (n_days,)
         Year number of each day: 0, …, n_years − 1, non-decreasing without gaps [-].
     keep_daily : bool, optional
-        Also return every daily flux and store (costs 9 arrays of n_days × n_tiles).
+        Also return every daily flux and store (costs 9 float64 arrays of n_days × n_tiles).
+    keep_daily_yield : bool, optional
+        Return the daily yield (default). False keeps the annual sums only, which is faster and
+        needs no n_days × n_tiles output (e.g. for an ensemble of parameter sets).
+    daily_dtype : numpy dtype, optional
+        ``np.float64`` (default) or ``np.float32`` for the daily yield; float32 halves its
+        memory and writing time and rounds each day to about 7 significant digits. The annual
+        sums are always accumulated in float64 from the unrounded daily values.
+    out : ndarray, shape (n_days, n_tiles), optional
+        C-contiguous float64 or float32 array to write the daily yield into, e.g. one reused
+        across runs so that no fresh memory is allocated and touched; it is returned as
+        ``daily_yield_mm`` and its dtype is the daily dtype. On an error its content is
+        unspecified.
 
     Returns
     -------
@@ -427,8 +442,8 @@ def simulate_tiles(
     Raises
     ------
     ValueError
-        On a shape mismatch, a bad ``year_index``, or a negative or non-finite forcing value
-        (the message names the array, day, tile and value).
+        On a shape mismatch, a bad ``year_index``, a negative or non-finite forcing value (the
+        message names the array, day, tile and value), or an unusable ``out``/``daily_dtype``.
 
     Notes
     -----
@@ -439,22 +454,58 @@ def simulate_tiles(
     n_days, n_tiles = forcing[0].shape
     years = _check_year_index(year_index, n_days)
     n_years = int(years[-1]) + 1
+    if keep_daily and not keep_daily_yield:
+        raise ValueError(
+            "keep_daily=True needs keep_daily_yield=True (the daily yield is one of "
+            "the daily outputs)"
+        )
 
     par = _kernel_parameters(params)
     state = _initial_state(params)
     annual = np.zeros((len(kernels.ANNUAL_NAMES), n_years, n_tiles))
-    daily_yield = np.empty((n_days, n_tiles))
+    daily_yield = None
     daily = None
+    if keep_daily_yield:
+        daily_yield = _daily_yield_array(out, daily_dtype, (n_days, n_tiles))
+    elif out is not None:
+        raise ValueError("out: given with keep_daily_yield=False (expected None)")
     if keep_daily:
         daily = np.empty((kernels.N_DAILY, n_days, n_tiles))
         kernels.run_tiles_daily(*forcing, years, par, state, annual, daily_yield, daily)
-    else:
+    elif keep_daily_yield:
         kernels.run_tiles(*forcing, years, par, state, annual, daily_yield)
+    else:
+        kernels.run_tiles_annual(*forcing, years, par, state, annual)
 
-    bad_days = kernels.unpack_row(state, kernels.N_STATE, kernels.S_BAD, n_tiles)
-    if bad_days.any():
-        _raise_first_bad_value(forcing, np.flatnonzero(bad_days))
+    # the kernel marks a year with an invalid input day by a NaN rain sum
+    bad_tiles = np.flatnonzero(np.isnan(annual[kernels.A_RAIN]).any(axis=0))
+    if bad_tiles.size:
+        _raise_first_bad_value(forcing, bad_tiles)
 
     result = TileAnnual(**dict(zip(kernels.ANNUAL_NAMES, annual, strict=True)))
     daily_dict = None if daily is None else dict(zip(kernels.DAILY_NAMES, daily, strict=True))
     return TileRun(annual=result, daily_yield_mm=daily_yield, daily=daily_dict)
+
+
+_DAILY_DTYPES = (np.dtype(np.float64), np.dtype(np.float32))
+
+
+def _daily_yield_array(out, daily_dtype, shape) -> np.ndarray:
+    """Return the daily-yield output: ``out`` once checked, or a new array of ``daily_dtype``."""
+    dtype = None if daily_dtype is None else np.dtype(daily_dtype)
+    if dtype is not None and dtype not in _DAILY_DTYPES:
+        raise ValueError(f"daily_dtype: {dtype}, expected float64 or float32")
+    if out is None:
+        return np.empty(shape, dtype=dtype or np.float64)
+    if not isinstance(out, np.ndarray) or out.shape != shape:
+        raise ValueError(
+            f"out: shape {np.shape(out)}, expected {shape} (n_days, n_tiles) like rain_mm"
+        )
+    if out.dtype not in _DAILY_DTYPES or (dtype is not None and out.dtype != dtype):
+        raise ValueError(
+            f"out: dtype {out.dtype}, expected "
+            + (f"{dtype} (daily_dtype)" if dtype is not None else "float64 or float32")
+        )
+    if not (out.flags.c_contiguous and out.flags.writeable):
+        raise ValueError("out: expected a writeable C-contiguous array")
+    return out
