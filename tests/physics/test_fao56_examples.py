@@ -1,7 +1,7 @@
 """FAO-56 worked examples, each checked at the precision the example prints.
 
 Source for every value: Allen, Pereira, Raes & Smith (1998), FAO Irrigation and Drainage Paper 56
-(FAO-56), Chapter 3 examples, as transcribed in secondary sources. Where FAO rounds
+(FAO-56), Chapter 3 examples, as reproduced in secondary sources. Where FAO rounds
 intermediates (table values of Ra and N), the final is compared at the printed precision only.
 """
 
@@ -82,7 +82,7 @@ def test_example_10_solar_radiation_from_sunshine_rio_may():
     assert_printed(
         radiation.solar_radiation_from_sunshine(7.1, RIO_LAT, doy), "14.5"
     )  # FAO-56 Example 10
-    # Exact-equation transcription (secondary source, 5 decimals), n = 220 h / 31 d:
+    # Exact-equation values reproduced in a secondary source (5 decimals), n = 220 h / 31 d:
     assert_printed(radiation.extraterrestrial_radiation(RIO_LAT, doy), "25.11103")
     assert_printed(radiation.solar_radiation_from_sunshine(220.0 / 31.0, RIO_LAT, doy), "14.4561")
 
@@ -100,7 +100,7 @@ def test_example_11_net_longwave_radiation_rio_may():
 
 
 def test_example_11_and_12_with_exact_equations_at_100_m():
-    # Secondary-source transcription of Examples 11-12 with exact Ra and z = 100 m (6 decimals)
+    # Examples 11-12 as reproduced in a secondary source with exact Ra and z = 100 m (6 decimals)
     rs = radiation.solar_radiation_from_sunshine(220.0 / 31.0, RIO_LAT, 135)
     rso = radiation.clear_sky_radiation(RIO_LAT, 135, 100.0)
     assert_printed(rso, "18.88349")
