@@ -16,6 +16,7 @@ import sys
 COMMANDS = {
     "climate": "climate",
     "compare": "compare",
+    "covers": "covers",
     "demo": "demo",
     "serve": "serve",
 }

@@ -1,0 +1,87 @@
+"""``coveryield covers [PLAN.toml]``: cover parameters with units, typical ranges, sources."""
+
+from __future__ import annotations
+
+import argparse
+
+#: Parameters shown, in order (see coveryield.covers.Cover).
+SHOWN = (
+    "albedo",
+    "height_m",
+    "rs_s_per_m",
+    "lai",
+    "canopy_capacity_mm",
+    "rooting_depth_m",
+    "depletion_fraction",
+    "curve_number",
+    "fallow_kc",
+)
+
+
+def add_parser(subparsers) -> None:
+    """Register the ``covers`` command."""
+    parser = subparsers.add_parser(
+        "covers",
+        help="list the covers' parameters with units, typical ranges and sources",
+        description="List the built-in covers (and a plan file's own covers) with every "
+        "parameter, its unit, typical range and published source.",
+    )
+    parser.add_argument(
+        "plan", metavar="PLAN.toml", nargs="?", help="also list the covers this plan file defines"
+    )
+    parser.set_defaults(run=run)
+
+
+def _value(cover, name: str) -> str:
+    value = getattr(cover, name)
+    if name == "curve_number":
+        return " ".join(f"{group}{cn:g}" for group, cn in value.items())
+    return f"{value:g}"
+
+
+def cover_lines(covers: dict) -> list[str]:
+    """Format the parameter table of ``covers`` (name -> Cover) as lines of text."""
+    from coveryield.covers import PARAMETER_INFO
+
+    names = list(covers)
+    width = max(12, *(len(n) + 2 for n in names))
+    lines = [f"{'parameter':<20}{'unit':<8}" + "".join(f"{n:>{width}}" for n in names)]
+    lines.append(
+        f"{'(derives from)':<20}{'':<8}" + "".join(f"{covers[n].base:>{width}}" for n in names)
+    )
+    for name in SHOWN:
+        unit = PARAMETER_INFO[name][0]
+        cells = "".join(f"{_value(covers[n], name):>{width}}" for n in names)
+        if name == "curve_number":  # four groups do not fit a column: own lines
+            lines.append(f"{name:<20}{unit:<8}(hydrologic soil groups A-D)")
+            lines += [f"{'':<4}{n:<24}{_value(covers[n], name)}" for n in names]
+            continue
+        lines.append(f"{name:<20}{unit:<8}{cells}")
+    crops = [n for n in names if covers[n].kc_calendar is not None]
+    for n in crops:
+        cal = covers[n].kc_calendar
+        lines.append(
+            f"{n}: Kc calendar planting day {cal.planting_doy_north} (north; +182 south), "
+            f"stages {'/'.join(map(str, cal.stage_days))} d, Kc "
+            f"{cal.kc_ini:g}/{cal.kc_mid:g}/{cal.kc_end:g}"
+        )
+    lines.append("")
+    lines.append("Typical ranges and sources:")
+    for name in SHOWN:
+        unit, typical, source = PARAMETER_INFO[name]
+        lines.append(f"  {name} [{unit}]: {typical}. Source: {source}.")
+    return lines
+
+
+def run(args: argparse.Namespace) -> int:
+    """Print the cover table."""
+    if args.plan:
+        from coveryield.plans import load_plan
+
+        covers = dict(load_plan(args.plan).covers)
+    else:
+        from coveryield.covers import BUILTIN_COVERS
+
+        covers = dict(BUILTIN_COVERS)
+    print("\n".join(cover_lines(covers)))
+    return 0
