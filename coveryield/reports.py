@@ -15,6 +15,7 @@ from pathlib import Path
 
 from coveryield.comparison import CAUTION, Comparison
 from coveryield.errors import OutputError
+from coveryield.report_html import render_report
 
 #: Files written by :func:`write_outputs`, in order.
 OUTPUT_FILES = (
@@ -25,6 +26,7 @@ OUTPUT_FILES = (
     "crosscheck.csv",
     "tiles.csv",
     "README.txt",
+    "report.html",
 )
 
 
@@ -108,6 +110,7 @@ def _readme_text(result: Comparison) -> str:
             "flow_duration.csv streamflow (m3/s) exceeded on a given % of days, per plan",
             "crosscheck.csv    mean annual evaporation: daily model vs Zhang (2001) and Fu (1981)",
             "tiles.csv         the same per zone and cover (tile), with mean rain and ET0",
+            "report.html       one-page report with charts (self-contained; open in a browser)",
             "",
             f"CAUTION: {CAUTION}",
             "",
@@ -123,6 +126,7 @@ def _write_all(result: Comparison, folder: Path) -> None:
     result.crosscheck_table().to_csv(folder / "crosscheck.csv", index=False, float_format="%.2f")
     result.cover_crosscheck_table().to_csv(folder / "tiles.csv", index=False, float_format="%.2f")
     (folder / "README.txt").write_text(_readme_text(result))
+    (folder / "report.html").write_text(render_report(result), encoding="utf-8")
 
 
 def _staging_folder(target: Path) -> Path:
