@@ -160,3 +160,18 @@ def test_bad_plan_exits_2_with_one_message_and_nothing_written(tmp_path):
     assert "plant-upper" in proc.stderr
     assert "1.1" in proc.stderr
     assert not out.exists()
+
+
+def test_bad_climate_file_exits_2_naming_line_and_column(tmp_path, capsys):
+    (tmp_path / "plans.toml").write_text((DEMO / "plans.toml").read_text())
+    lines = (DEMO / "climate.csv").read_text().splitlines()[:400]
+    date, _rain, *rest = lines[49].split(",")
+    lines[49] = ",".join([date, "abc", *rest])
+    (tmp_path / "climate.csv").write_text("\n".join(lines) + "\n")
+    out = tmp_path / "results"
+    assert main(["compare", str(tmp_path / "plans.toml"), "--out", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert "line 50" in err
+    assert "rain_mm" in err
+    assert "'abc'" in err
+    assert not out.exists()
