@@ -25,16 +25,12 @@ from coveryield.engine.water_balance import TileParameters, simulate_tiles
 from coveryield.errors import PlanFileError
 from coveryield.forcing import cover_evaporation, reference_et
 from coveryield.physics.curves import (
-    CROSSCHECK_TOLERANCE,
     ZHANG_W,
     fu_evaporation,
     fu_omega_matching_zhang,
     zhang_evaporation,
 )
 from coveryield.plans import PlanFile
-
-#: Annual flux names kept per tile [mm over the tile per year], in the engine's order.
-ANNUAL_FLUXES = ANNUAL_NAMES
 
 
 @dataclass(frozen=True)
@@ -54,7 +50,8 @@ class TileResults:
     years : numpy.ndarray
         Complete calendar years of the record, one row per year in ``annual``.
     annual : dict of str -> numpy.ndarray
-        Per flux in :data:`ANNUAL_FLUXES`, array (n_years, n_tiles) [mm yr-1 over the tile].
+        Per flux in :data:`coveryield.engine.kernels.ANNUAL_NAMES`, array (n_years, n_tiles)
+        [mm yr-1 over the tile].
     dates : pandas.DatetimeIndex
         Every simulated day.
     daily_yield_mm : numpy.ndarray
@@ -147,13 +144,6 @@ class MixedSeries:
     model_evap_mm: float
     zhang_evap_mm: float
     fu_evap_mm: float
-
-    @property
-    def crosscheck_flag(self) -> bool:
-        """True when model and Zhang-curve evaporation differ by more than the tolerance."""
-        return bool(
-            abs(self.model_evap_mm - self.zhang_evap_mm) > CROSSCHECK_TOLERANCE * self.zhang_evap_mm
-        )
 
 
 def mix_tiles(tiles: TileResults, weights: np.ndarray) -> MixedSeries:
@@ -346,7 +336,7 @@ def simulate_catchment(
             f"{plan_file.catchment.climate}: the climate record holds no complete calendar year; "
             "expected at least one year from 1 January to 31 December"
         )
-    annual = {name: getattr(run.annual, name)[keep] for name in ANNUAL_FLUXES}
+    annual = {name: getattr(run.annual, name)[keep] for name in ANNUAL_NAMES}
     in_complete = np.isin(dates.year, np.asarray(year_values)[keep])
     rain_mean = annual["rain_mm"].mean(axis=0)
     et0_mean = np.array([annual_mean(et0_by_zone[zone], dates, in_complete) for zone, _ in tiles])
