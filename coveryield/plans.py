@@ -202,6 +202,14 @@ class PlanFile(BaseModel):
         """Plan names, the baseline ``current`` first, then the others in file order."""
         return (BASELINE_PLAN,) + tuple(p for p in self.plans if p != BASELINE_PLAN)
 
+    def input_files(self) -> dict[str, Path]:
+        """Files a run of this plan file reads: role -> path.
+
+        Output writers never replace these (see :mod:`coveryield.output_folder`). A reader of
+        further files (observed flow, schedules) adds them here.
+        """
+        return {"plan file": Path(self.source), "climate file": Path(self.catchment.climate)}
+
     @property
     def derived_covers(self) -> dict[str, Cover]:
         """The covers this file defines on top of the built-ins, in file order."""

@@ -469,7 +469,7 @@ def render_report(result: Comparison) -> str:
         f"<figcaption>{_esc(caption)}</figcaption></figure>"
         for caption, svg in _charts(result)
     )
-    dry = ", ".join(str(y) for y in sorted(result.dry_years))
+    dry = ", ".join(str(y) for y in result.dry_years)
     parts = [
         "<!DOCTYPE html>",
         '<html lang="en"><head><meta charset="utf-8">',
@@ -478,13 +478,15 @@ def render_report(result: Comparison) -> str:
         f"<style>{_CSS}</style></head><body>",
         f"<h1>{name}: water yield of land-use plans</h1>",
         f'<p class="meta">Catchment area {spec.area_km2:,.4g} km² · {len(years)} complete years '
-        f"{years[0]}–{years[-1]} · driest 10 % of years by rain: {dry}</p>",
+        f"{years[0]}–{years[-1]} · driest 10 % of years by rain, driest first: {dry}</p>",
         f'<p class="meta">Plan file: <code>{_esc(result.plan_file.source)}</code></p>',
         caution,
         "<h2>Headline figures</h2>",
         _headline_table(result),
         '<p class="note">Depths are mm per year over the whole catchment (1 mm over 1 km² = '
-        "1 ML). Changes are against <code>current</code>; negative means less water. Q95 is the "
+        "1 ML). Changes are against <code>current</code>; negative means less water. Driest 10 % "
+        "of years: the mean change over the years with the least catchment rain; driest year: "
+        f"the change in the single year with the least rain ({result.driest_year}). Q95 is the "
         "flow equalled or exceeded on 95 % of days. The evaporation flag compares the daily "
         "model with the Zhang et al. (2001) curve for the same cover mix "
         f"(tolerance ±{tol} %).</p>",

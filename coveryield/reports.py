@@ -8,17 +8,22 @@ from __future__ import annotations
 import json
 import math
 import os
-import shutil
-import tempfile
-from collections.abc import Callable
+from collections.abc import Mapping
 from pathlib import Path
 
 from coveryield.comparison import CAUTION, Comparison
-from coveryield.errors import OutputError
+from coveryield.output_folder import (
+    MANIFEST_NAME,
+    OutputFolder,
+    check_output_folder,
+    write_new_folder,
+)
 from coveryield.physics.curves import CROSSCHECK_TOLERANCE
 from coveryield.report_html import render_report
 
-#: Files written by :func:`write_outputs`, in order.
+__all__ = ["OUTPUT_FILES", "comparison_table", "write_outputs", "write_new_folder"]
+
+#: Files written by :func:`write_outputs`, in order (the folder's manifest comes on top).
 OUTPUT_FILES = (
     "annual.csv",
     "summary.json",
@@ -38,6 +43,11 @@ def _signed(value: float, digits: int = 1) -> str:
     return text.replace("-", "\u2212")
 
 
+def dry_years_text(result: Comparison) -> str:
+    """The dry years as text, driest first (the order of ``summary.json`` and the dashboard)."""
+    return ", ".join(str(y) for y in result.dry_years)
+
+
 def comparison_table(result: Comparison) -> str:
     """Format a readable plain-text comparison of every plan against `current`.
 
@@ -55,8 +65,8 @@ def comparison_table(result: Comparison) -> str:
     years = result.years
     lines = [
         f"{spec.name}: {spec.area_km2:g} km2, {len(years)} complete years "
-        f"{years[0]}-{years[-1]}; dry years (driest 10 % by rain): "
-        + ", ".join(str(y) for y in sorted(result.dry_years)),
+        f"{years[0]}-{years[-1]}; dry years (driest 10 % by rain, driest first): "
+        + dry_years_text(result),
         "",
     ]
     header = (
@@ -89,7 +99,8 @@ def comparison_table(result: Comparison) -> str:
     lines += [
         "",
         "change: against `current` (negative = less water). dry 10%: mean change over the dry "
-        "years. Q95: flow exceeded on 95 % of days.",
+        f"years. driest: change in the single driest year ({result.driest_year}). Q95: flow "
+        "exceeded on 95 % of days.",
         "evap vs Zhang: daily model against the Zhang et al. (2001) curve for the same mix; "
         "* marks a difference above the stated tolerance "
         f"({100 * CROSSCHECK_TOLERANCE:.0f} %).",
@@ -112,6 +123,8 @@ def _readme_text(result: Comparison) -> str:
             "crosscheck.csv    mean annual evaporation: daily model vs Zhang (2001) and Fu (1981)",
             "tiles.csv         the same per zone and cover (tile), with mean rain and ET0",
             "report.html       one-page report with charts (self-contained; open in a browser)",
+            f"{MANIFEST_NAME}  what coveryield wrote here, with checksums; --force replaces",
+            "                  only these files, and only while unchanged",
             "",
             f"CAUTION: {CAUTION}",
             "",
@@ -130,68 +143,38 @@ def _write_all(result: Comparison, folder: Path) -> None:
     (folder / "report.html").write_text(render_report(result), encoding="utf-8")
 
 
-def _staging_folder(target: Path) -> Path:
-    """Make a hidden temporary folder beside ``target`` (same file system: renames are atomic)."""
-    parent = target.resolve().parent
-    try:
-        parent.mkdir(parents=True, exist_ok=True)
-        return Path(tempfile.mkdtemp(prefix=f".{target.name}-", dir=parent))
-    except OSError as exc:
-        raise OutputError(f"{target}: cannot write here ({exc.strerror})") from None
+def _declared(target: OutputFolder | str | os.PathLike, force: bool, inputs) -> OutputFolder:
+    if isinstance(target, OutputFolder):
+        return target
+    return check_output_folder(target, OUTPUT_FILES, force=force, inputs=inputs)
 
 
-def write_new_folder(target: str | os.PathLike, write: Callable[[Path], None]) -> Path:
-    """Create a NEW folder holding what ``write`` puts in it, all or nothing.
+def write_outputs(
+    result: Comparison,
+    out_dir: OutputFolder | str | os.PathLike,
+    *,
+    force: bool = False,
+    inputs: Mapping[str, str | os.PathLike] | None = None,
+) -> Path:
+    """Write the comparison tables and the report into a folder, all or nothing.
 
-    ``write`` fills a hidden temporary folder beside ``target``, which is then renamed; on any
-    failure the temporary folder is removed and ``target`` does not appear.
-
-    Parameters
-    ----------
-    target : path
-        Folder to create; must not exist.
-    write : callable
-        Called with the temporary folder's path.
-
-    Returns
-    -------
-    pathlib.Path
-        The new folder.
-
-    Raises
-    ------
-    coveryield.errors.OutputError
-        If ``target`` exists or cannot be written.
-    """
-    target = Path(target)
-    if target.exists():
-        raise OutputError(f"{target}: exists already; expected a new folder")
-    staging = _staging_folder(target)
-    try:
-        write(staging)
-        os.rename(staging, target)
-    except OSError as exc:
-        raise OutputError(f"{target}: writing failed ({exc}); nothing was written") from None
-    finally:
-        shutil.rmtree(staging, ignore_errors=True)
-    return target
-
-
-def write_outputs(result: Comparison, out_dir: str | os.PathLike, *, force: bool = False) -> Path:
-    """Write the comparison tables into a folder, all or nothing.
-
-    Every file is first written to a temporary folder beside ``out_dir``; only when all are
-    complete are they moved into place, so a failure never leaves half an output.
+    Every file is first written to a staging folder; only when all are complete are they moved
+    into place, so a failure never leaves half an output. The folder's manifest
+    (:data:`~coveryield.output_folder.MANIFEST_NAME`) lists what was written.
 
     Parameters
     ----------
     result : Comparison
         The compared plans.
-    out_dir : path
-        Folder to create (or an empty folder). An existing non-empty folder is refused unless
-        ``force`` is set, and even then only the files listed in :data:`OUTPUT_FILES` are replaced.
+    out_dir : OutputFolder or path
+        A folder checked with :func:`~coveryield.output_folder.check_output_folder` before the
+        work (the command line does this), or a path, checked here: a new or empty folder, or
+        with ``force`` one holding coveryield's own earlier outputs.
     force : bool
-        Replace earlier coveryield outputs in ``out_dir``.
+        Replace coveryield's own, unchanged earlier outputs (never an input, never a file
+        coveryield did not write). Ignored when ``out_dir`` is already checked.
+    inputs : mapping, optional
+        Role -> path of the run's inputs; default: the plan file and its climate file.
 
     Returns
     -------
@@ -201,25 +184,9 @@ def write_outputs(result: Comparison, out_dir: str | os.PathLike, *, force: bool
     Raises
     ------
     coveryield.errors.OutputError
-        If the folder holds other files, or cannot be written.
+        If the folder cannot take the outputs, or cannot be written.
     """
-    out = Path(out_dir)
-    if out.exists() and not out.is_dir():
-        raise OutputError(f"{out}: exists and is not a folder; expected a new or empty folder")
-    if out.is_dir() and any(out.iterdir()) and not force:
-        raise OutputError(
-            f"{out}: folder is not empty; choose a new folder, or pass --force to replace "
-            f"earlier coveryield outputs ({', '.join(OUTPUT_FILES)})"
-        )
-    if not out.exists():
-        return write_new_folder(out, lambda folder: _write_all(result, folder))
-    staging = _staging_folder(out)
-    try:
-        _write_all(result, staging)
-        for name in OUTPUT_FILES:
-            os.replace(staging / name, out / name)
-    except OSError as exc:
-        raise OutputError(f"{out}: writing outputs failed ({exc}); nothing was changed") from None
-    finally:
-        shutil.rmtree(staging, ignore_errors=True)
-    return out
+    if inputs is None:
+        inputs = result.plan_file.input_files()
+    target = _declared(out_dir, force, inputs)
+    return target.write(lambda folder: _write_all(result, folder))

@@ -5,6 +5,8 @@ from __future__ import annotations
 import argparse
 import sys
 
+from coveryield.commands.out_option import add_out_arguments, checked_out_folder
+
 
 def add_parser(subparsers) -> None:
     """Register the ``compare`` command."""
@@ -15,28 +17,25 @@ def add_parser(subparsers) -> None:
         "`current`: mean annual yield, dry years, seasons, low flows, curve cross-check.",
     )
     parser.add_argument("plan", metavar="PLAN.toml", help="plan file (TOML)")
-    parser.add_argument(
-        "--out",
-        metavar="DIR",
-        help="write annual.csv, summary.json and more tables into DIR (a new or empty folder)",
-    )
-    parser.add_argument(
-        "--force", action="store_true", help="replace earlier coveryield outputs in a non-empty DIR"
-    )
+    add_out_arguments(parser, "report.html, annual.csv, summary.json and more tables")
     parser.set_defaults(run=run)
 
 
 def run(args: argparse.Namespace) -> int:
     """Compare the plans, print the table, optionally write the outputs."""
     from coveryield.comparison import compare
-    from coveryield.reports import comparison_table, write_outputs
+    from coveryield.plans import load_plan
+    from coveryield.output_folder import MANIFEST_NAME
+    from coveryield.reports import OUTPUT_FILES, comparison_table, write_outputs
 
-    result = compare(args.plan, progress=sys.stderr.isatty())
+    plan_file = load_plan(args.plan)
+    target = checked_out_folder(args, OUTPUT_FILES, plan_file.input_files())
+    result = compare(plan_file, progress=sys.stderr.isatty())
     print(comparison_table(result))
-    if args.out:
-        out = write_outputs(result, args.out, force=args.force)
+    if target is not None:
+        out = write_outputs(result, target)
         print(
-            f"\nwrote {out}/ (annual.csv, summary.json, monthly.csv, flow_duration.csv, "
-            "crosscheck.csv, tiles.csv)"
+            f"\nwrote {len(OUTPUT_FILES)} files to {out}/: {', '.join(OUTPUT_FILES)} "
+            f"(each listed with its checksum in {MANIFEST_NAME})"
         )
     return 0

@@ -15,7 +15,7 @@ from typing import Any
 
 from coveryield.comparison import CAUTION
 from coveryield.errors import OutputError, PlanFileError
-from coveryield.reports import write_new_folder
+from coveryield.output_folder import write_new_folder
 
 PLAN_NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_-]{0,39}")
 
