@@ -13,28 +13,17 @@ from __future__ import annotations
 import html
 import io
 import math
+import string
 from collections.abc import Callable, Iterable
 
 import numpy as np
 
+from coveryield import palette
 from coveryield.comparison import CAUTION, Comparison, PlanChange, PlanOutcome
+from coveryield.palette import PLAN_STYLES
 from coveryield.physics.curves import CROSSCHECK_TOLERANCE
 
 __all__ = ["render_report", "PLAN_STYLES"]
-
-#: Colour, marker, line style and bar hatch per plan, in plan order (``current`` first), cycled
-#: if there are more plans. Hues are far apart for the common colour-vision deficiencies and
-#: differ in lightness; markers, dashes and hatches keep plans apart in greyscale print
-#: (common practice, no source).
-PLAN_STYLES = (
-    ("#222222", "o", "-", ""),
-    ("#0072b2", "s", "--", "//"),
-    ("#d55e00", "^", "-.", "\\\\"),
-    ("#009e73", "D", ":", "xx"),
-    ("#cc79a7", "v", (0, (5, 1, 1, 1, 1, 1)), ".."),
-    ("#e69f00", "P", (0, (8, 2)), "--"),
-    ("#56b4e9", "X", (0, (2, 2)), "++"),
-)
 
 _MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
@@ -50,13 +39,13 @@ _RC = {
     "legend.frameon": False,
 }
 
-_CSS = """
-body { font-family: "Segoe UI", "Helvetica Neue", Arial, sans-serif; color: #1a1a1a;
+_CSS = string.Template("""
+body { font-family: "Segoe UI", "Helvetica Neue", Arial, sans-serif; color: $ink;
        max-width: 1060px; margin: 1.5em auto; padding: 0 1.2em; line-height: 1.4; }
 h1 { font-size: 1.55em; margin: 0 0 .2em; }
 h2 { font-size: 1.15em; margin: 1.6em 0 .4em; border-bottom: 1px solid #999; }
 p.meta { margin: .1em 0; color: #333; }
-.caution { border: 3px solid #a33a00; background: #fff4ec; padding: .6em .9em; margin: 1em 0;
+.caution { border: 3px solid $edge; background: $bg; padding: .6em .9em; margin: 1em 0;
            font-weight: 600; }
 table { border-collapse: collapse; font-size: .86em; margin: .4em 0 .6em; }
 th, td { border: 1px solid #bbb; padding: .25em .45em; }
@@ -64,7 +53,7 @@ th { background: #f0f0f0; font-weight: 600; vertical-align: bottom; }
 td.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 td.name { white-space: nowrap; }
 td.changed { font-weight: 700; }
-td.flag { font-weight: 700; color: #a33a00; }
+td.flag { font-weight: 700; color: $alert; }
 tr.unused td { color: #777; }
 td[rowspan] { vertical-align: top; }
 .swatch { display: inline-block; width: .9em; height: .9em; margin-right: .35em;
@@ -80,7 +69,9 @@ figcaption { font-size: .88em; color: #333; margin-top: .2em; }
   h2 { page-break-after: avoid; break-after: avoid; }
   table, figure { page-break-inside: avoid; break-inside: avoid; }
 }
-"""
+""").substitute(
+    ink=palette.INK, edge=palette.CAUTION_EDGE, bg=palette.CAUTION_BG, alert=palette.ALERT
+)
 
 
 # ---- small formatters ----------------------------------------------------------------------
@@ -109,7 +100,7 @@ def _td(text: str, cls: str = "n") -> str:
 
 
 def _style(index: int) -> tuple:
-    return PLAN_STYLES[index % len(PLAN_STYLES)]
+    return palette.plan_style(index)
 
 
 def _swatch(index: int) -> str:
@@ -269,7 +260,7 @@ def _annual_chart(fig, result: Comparison) -> None:
         ax.axvspan(
             year - 0.5,
             year + 0.5,
-            color="#e6e6e6",
+            color=palette.DRY_BAND,
             zorder=0,
             label="driest 10 % of years (by rain)" if k == 0 else None,
         )

@@ -38,6 +38,7 @@ HOST = "127.0.0.1"
 NOTEBOOK_NAME = "dashboard.ipynb"
 PLAN_ENV = "COVERYIELD_PLAN"
 READ_ONLY_ENV = "COVERYIELD_READ_ONLY"
+START_PLAN_ENV = "COVERYIELD_START_PLAN"
 #: Seconds between checks for idle kernels, and idle time after which a kernel is shut down [s].
 CULL_INTERVAL_S = 60
 CULL_IDLE_TIMEOUT_S = 600

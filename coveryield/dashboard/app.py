@@ -1,7 +1,9 @@
-"""The dashboard page: header, caution, controls beside headline figures, then four charts.
+"""The dashboard page: header, caution, controls beside headline cards, then a grid of charts.
 
 :class:`Dashboard` is itself a widget (a ``VBox``): as the last expression of a notebook cell it
-shows itself, and its :attr:`~Dashboard.state` can be driven from Python.
+shows itself, and its :attr:`~Dashboard.state` can be driven from Python. The cards and charts are
+the classes listed in :data:`coveryield.dashboard.cards.CARDS` and
+:data:`coveryield.dashboard.charts.CHARTS` unless others are passed.
 """
 
 from __future__ import annotations
@@ -14,17 +16,12 @@ from typing import Any
 import ipywidgets as widgets
 
 from coveryield.dashboard import palette
+from coveryield.dashboard.cards import Headline
+from coveryield.dashboard.charts import Charts
 from coveryield.dashboard.exports import CAUTION
 from coveryield.dashboard.state import DashboardState
-from coveryield.dashboard.views import (
-    Charts,
-    ErrorArea,
-    Guard,
-    Headline,
-    ManagerControls,
-    ShareControls,
-)
-from coveryield.serve import PLAN_ENV, READ_ONLY_ENV  # noqa: E402 - light module, no widgets
+from coveryield.dashboard.views import ErrorArea, Guard, ManagerControls, ShareControls
+from coveryield.serve import PLAN_ENV, READ_ONLY_ENV, START_PLAN_ENV  # light module, no widgets
 
 TRUE_WORDS = ("1", "true", "yes", "on")
 
@@ -59,11 +56,14 @@ class Dashboard(widgets.VBox):
         runs the daily simulation once).
     read_only : bool
         Leave out every control that writes files (stakeholder mode).
-    plan_name : str
-        Plan to start from.
+    plan_name : str, optional
+        Plan to start from (default: the first plan after ``current``, so the page opens on
+        that plan's own figures; ``current`` if it is the only plan).
     plan_path : str or pathlib.Path, optional
         The plan file's location, where saved plans and exports go (default: taken from
         ``source``).
+    cards, charts : sequences of classes, optional
+        The headline cards and the charts (default: ``cards.CARDS`` and ``charts.CHARTS``).
 
     Attributes
     ----------
@@ -73,8 +73,8 @@ class Dashboard(widgets.VBox):
         The parts of the page; ``manager`` is None in read-only mode.
     """
 
-    def __init__(self, source: Any, *, read_only: bool = False, plan_name: str = "current",
-                 plan_path: str | os.PathLike | None = None) -> None:
+    def __init__(self, source: Any, *, read_only: bool = False, plan_name: str | None = None,
+                 plan_path: str | os.PathLike | None = None, cards=None, charts=None) -> None:
         comparison, known_path = _as_comparison(source)
         self.read_only = bool(read_only)
         self.plan_path = Path(plan_path) if plan_path is not None else known_path
@@ -82,8 +82,8 @@ class Dashboard(widgets.VBox):
         self.guard = Guard(self.state)
         self.errors = ErrorArea(self.state)
         self.controls = ShareControls(self.state, self.guard)
-        self.headline = Headline(self.state, self.guard)
-        self.charts = Charts(self.state, self.guard)
+        self.headline = Headline(self.state, self.guard, cards)
+        self.charts = Charts(self.state, self.guard, charts)
         self.manager = None if self.read_only else ManagerControls(
             self.state, self.guard, self.plan_path)
         left = [self.controls.widget] + ([self.manager.widget] if self.manager else [])
@@ -113,15 +113,16 @@ class Dashboard(widgets.VBox):
             f"Water yield of land-cover plans: {html.escape(str(catchment.name))}</div>"
             f'<div style="color:{palette.MUTED};font-size:13px">'
             f"{catchment.area_km2:,.1f} km\u00b2 in {zones} zone{'s' if zones != 1 else ''}; "
-            f"daily climate {span}. Move the shares of the covers to see how the mean yield, dry "
-            "years and flows change against the current plan.</div></div>"
+            f"daily climate {span}. The page opens on a plan of the plan file; move the shares of "
+            "the covers to see how the mean yield, dry years and flows change against the "
+            "current plan.</div></div>"
         )
 
     @staticmethod
     def _caution() -> widgets.HTML:
         return widgets.HTML(
             f'<div class="cy-caution" style="background:{palette.CAUTION_BG};color:{palette.INK};'
-            f'border-left:4px solid {palette.CURRENT};padding:6px 10px;margin:6px 0;'
+            f'border-left:4px solid {palette.CAUTION_EDGE};padding:6px 10px;margin:6px 0;'
             f'font-size:13px"><b>Caution:</b> {html.escape(CAUTION)} '
             "Figures are means over the climate record; they are not a forecast.</div>"
         )
@@ -152,7 +153,13 @@ def env_plan_path() -> Path:
     return Path(coveryield.demo_plan_path())
 
 
-def show_dashboard(plan: Any = None, *, read_only: bool | None = None) -> Dashboard:
+def env_start_plan() -> str | None:
+    """Plan to start from, from the COVERYIELD_START_PLAN environment variable (None: default)."""
+    return os.environ.get(START_PLAN_ENV) or None
+
+
+def show_dashboard(plan: Any = None, *, read_only: bool | None = None,
+                   plan_name: str | None = None) -> Dashboard:
     """Build the dashboard; as the last expression of a cell it shows itself.
 
     Parameters
@@ -162,6 +169,9 @@ def show_dashboard(plan: Any = None, *, read_only: bool | None = None) -> Dashbo
         catchment).
     read_only : bool, optional
         Leave out the controls that write files (default: COVERYIELD_READ_ONLY, else False).
+    plan_name : str, optional
+        Plan to start from (default: COVERYIELD_START_PLAN, else the first plan after
+        ``current``).
 
     Returns
     -------
@@ -170,4 +180,4 @@ def show_dashboard(plan: Any = None, *, read_only: bool | None = None) -> Dashbo
     """
     source = env_plan_path() if plan is None else plan
     ro = env_read_only() if read_only is None else bool(read_only)
-    return Dashboard(source, read_only=ro)
+    return Dashboard(source, read_only=ro, plan_name=plan_name or env_start_plan())
