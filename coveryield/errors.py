@@ -21,3 +21,7 @@ class PlanFileError(CoveryieldError, ValueError):
 
 class OutputError(CoveryieldError, OSError):
     """An output could not be written (for example the target exists and would be overwritten)."""
+
+
+class MissingExtraError(CoveryieldError, ImportError):
+    """An optional part of coveryield is used without its extra packages installed."""
