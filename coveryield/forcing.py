@@ -146,26 +146,42 @@ def cover_evaporation(climate, cover, et0_mm=None):
     Returns
     -------
     pandas.DataFrame
-        On the record's date index:
+        On the record's date index, three potential rates, all in mm d-1:
 
-        ``dry_mm``
-            Dry-canopy evaporation [mm d-1]: Penman-Monteith (eq. 3) with the cover's albedo,
-            surface resistance and an aerodynamic resistance (eq. 4) taken at the cover's
-            reference height with the station wind moved above the canopy; for a cover with a
-            Kc calendar, Kc(doy) ETo in season (eq. 58) and 0 outside it.
-        ``wet_mm``
-            Wet-canopy evaporation, the same with rs = 0 [mm d-1]: the rate at which
-            intercepted rain evaporates. 0 outside a crop's season (no canopy).
-        ``soil_mm``
-            Potential bare-soil evaporation [mm d-1]: fallow_kc ETo outside a crop's season,
-            0 otherwise.
+        ===========  ======  =============================================================
+        column       unit    what it is
+        ===========  ======  =============================================================
+        ``dry_mm``   mm d-1  dry-canopy evaporation (transpiration at full supply)
+        ``wet_mm``   mm d-1  evaporation of rain held on a wet canopy (interception loss)
+        ``soil_mm``  mm d-1  bare-soil evaporation at full supply
+        ===========  ======  =============================================================
+
+        ``dry_mm``: Penman-Monteith (eq. 3) with the cover's albedo, surface resistance and an
+        aerodynamic resistance (eq. 4) taken at the cover's reference height with the station
+        wind moved above the canopy; for a cover with a Kc calendar, Kc(doy) ETo in season
+        (eq. 58) and 0 outside it.
+
+        ``wet_mm``: the same with rs = 0, the rate at which intercepted rain evaporates; 0
+        outside a crop's season (no canopy). For a tall, rough canopy it is large: with rs = 0
+        and an aerodynamic resistance of only about 5-20 s m-1 (against 70-200 s m-1 for grass),
+        the vapour-pressure-deficit term of eq. 3 dominates, so on warm, dry, windy days it
+        reaches 12-20 mm d-1, several times the dry-canopy rate. That is expected, not an error
+        (wet forest canopies evaporating several times faster than dry ones is well documented,
+        e.g. Calder 1990; quoted from memory): the rate applies only while the canopy is wet and
+        is limited by the few mm the canopy holds (``canopy_capacity_mm``), so a day's
+        interception loss stays a few mm; it is what makes forest lose 20-40 % of the rain of
+        wet, windy climates to interception (from memory).
+
+        ``soil_mm``: fallow_kc ETo outside a crop's season, 0 otherwise.
 
         For open water, dry_mm = wet_mm = open-water evaporation and soil_mm = 0.
         Negative rates (dew) are set to 0 (common practice, no source).
 
     References
     ----------
-    FAO-56 (Allen et al. 1998), eqs. 3, 4, 6 and 58; Monteith (1965).
+    FAO-56 (Allen et al. 1998), eqs. 3, 4, 6 and 58; Monteith (1965). Calder, I. R. (1990),
+    Evaporation in the Uplands, Wiley (wet-canopy evaporation and interception loss of forest;
+    cited from memory).
     """
     index, col, doy = _daily_inputs(climate)
     site = climate.site
