@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import logging
 import sys
+import time
 from typing import Any
 
 from jupyter_server.services.kernels.connection.channels import ZMQChannelsWebsocketConnection
@@ -32,6 +33,8 @@ from tornado.websocket import WebSocketClosedError
 from coveryield.serve import MAX_KERNELS_FLAG
 
 BUSY_REASON = "Dashboard busy"
+#: Logged when a warm kernel has run the dashboard: the next page is ready in about a second.
+WARM_READY = "warm kernel ready:"
 BUSY_MESSAGE = (
     "This dashboard is already open in as many browser tabs as its server allows "
     "({n} at once). Please try again in a few minutes; a tab closed elsewhere frees a place."
@@ -89,6 +92,22 @@ class KernelCap:
         if failed:
             self.fill_if_needed(delay=0, notebook_name=notebook_name)
         return len(pool)
+
+    async def _initialize(self, notebook_path: str, kernel_id: str | None = None,
+                          **kwargs: Any) -> dict:
+        """Start a warm kernel (pre-heating managers only); log once it has run the dashboard."""
+        started = time.monotonic()
+        content = await super()._initialize(notebook_path, kernel_id, **kwargs)
+        task, kid = content.get("task"), content.get("kernel_id")
+
+        def rendered(done: Any) -> None:
+            if not done.cancelled() and done.exception() is None:
+                self.log.info("%s %s ran the dashboard in %.1f s", WARM_READY, kid,
+                              time.monotonic() - started)
+
+        if task is not None:
+            task.add_done_callback(rendered)
+        return content
 
     async def shutdown_kernel(self, kernel_id: str, *args: Any, **kwargs: Any) -> None:
         """Shut a kernel down; refill the warm spare if the cap had held it back."""

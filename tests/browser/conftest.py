@@ -63,8 +63,8 @@ class Served:
         return _snapshot(self.plan_dir)
 
 
-#: Log line of Voila once its warm kernel has run the dashboard.
-WARM = "Kernel pool of dashboard.ipynb is filled"
+#: Logged once the warm kernel has run the dashboard (coveryield.voila_process.WARM_READY).
+WARM = "warm kernel ready:"
 
 
 def wait_for_log(server: Served, text: str, timeout_s: float = 120.0) -> None:

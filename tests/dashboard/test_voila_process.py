@@ -7,6 +7,7 @@ left a websocket traceback in the log. The cap's rules are our own, no source.
 from __future__ import annotations
 
 import asyncio
+import concurrent.futures
 import logging
 
 import pytest
@@ -39,6 +40,12 @@ class FakeManager:
         self.ids.remove(kernel_id)
 
 
+def run(coroutine):
+    """Run a coroutine on a loop of its own (a browser test's loop may be running here)."""
+    with concurrent.futures.ThreadPoolExecutor(1) as pool:
+        return pool.submit(asyncio.run, coroutine).result()
+
+
 VIEWER = {"env": {"VOILA_PREHEAT": "False"}}
 SPARE = {"env": {"VOILA_PREHEAT": "True"}}
 
@@ -46,11 +53,11 @@ SPARE = {"env": {"VOILA_PREHEAT": "True"}}
 def test_a_viewer_beyond_the_cap_gets_503_with_a_message(caplog):
     manager = with_cap(FakeManager, 2)()
     assert isinstance(manager, KernelCap)
-    asyncio.run(manager.start_kernel(**VIEWER))
-    asyncio.run(manager.start_kernel(**VIEWER))
+    run(manager.start_kernel(**VIEWER))
+    run(manager.start_kernel(**VIEWER))
     with caplog.at_level(logging.WARNING, logger="fake-voila"), \
             pytest.raises(web.HTTPError) as refused:
-        asyncio.run(manager.start_kernel(**VIEWER))
+        run(manager.start_kernel(**VIEWER))
     assert refused.value.status_code == 503
     assert "try again" in refused.value.log_message
     assert manager.ids == ["k0", "k1"]
@@ -59,13 +66,13 @@ def test_a_viewer_beyond_the_cap_gets_503_with_a_message(caplog):
 
 def test_the_warm_spare_waits_for_room_and_refills_when_a_kernel_goes():
     manager = with_cap(FakeManager, 2)()
-    asyncio.run(manager.start_kernel(**VIEWER))
+    run(manager.start_kernel(**VIEWER))
     manager.fill_if_needed(notebook_name="nb")
     assert manager.fills == ["nb"]  # room for a spare
-    asyncio.run(manager.start_kernel(**SPARE))
+    run(manager.start_kernel(**SPARE))
     manager.fill_if_needed(notebook_name="nb")
     assert manager.fills == ["nb"]  # at the cap: held back
-    asyncio.run(manager.shutdown_kernel("k0"))
+    run(manager.shutdown_kernel("k0"))
     assert manager.fills == ["nb", "nb"]  # a place freed: the spare is refilled
 
 
@@ -80,7 +87,7 @@ def test_a_spare_that_failed_to_start_is_replaced():
         manager._pools["nb"] = [failed, ready]
         return manager.get_pool_size("nb")
 
-    assert asyncio.run(check()) == 1
+    assert run(check()) == 1
     assert manager.fills == ["nb"]
 
 
