@@ -50,7 +50,7 @@ Inputs = Mapping[str, "str | os.PathLike"]
 
 
 def current_umask() -> int:
-    """The process's file-mode creation mask, read without changing it where Linux allows."""
+    """Return the process's file-mode creation mask (read without changing it on Linux)."""
     try:
         with open("/proc/self/status", encoding="ascii") as status:
             for line in status:
@@ -222,8 +222,10 @@ class OutputFolder:
                     "choose another output folder"
                 )
         if target.is_dir() and not target.is_symlink():
-            raise OutputError(f"{target}: is a folder; coveryield would write a file there: "
-                              "choose another output folder")
+            raise OutputError(
+                f"{target}: is a folder; coveryield would write a file there: "
+                "choose another output folder"
+            )
         if not entry:
             raise OutputError(
                 f"{target}: coveryield did not write this file (it is not in {MANIFEST_NAME}); "
@@ -273,8 +275,10 @@ class OutputFolder:
             stamp = _now()
             old = read_manifest(out)
             new = {name: _entry(staging / name, stamp) for name in written}
-            interim = {**old, **{n: {**e, "sha256_before": old.get(n, {}).get("sha256")}
-                                 for n, e in new.items()}}
+            interim = {
+                **old,
+                **{n: {**e, "sha256_before": old.get(n, {}).get("sha256")} for n, e in new.items()},
+            }
             _write_manifest(out, interim)  # a failure midway leaves every file replaceable
             for name in written:
                 (out / name).parent.mkdir(parents=True, exist_ok=True)

@@ -1,5 +1,6 @@
-"""One palette for every output: a plan, a cover, a band has the same colour in the report and on
-the dashboard.
+"""One palette for every output, so report and dashboard agree.
+
+A plan, a cover or a band has the same colour in the report and on the dashboard.
 
 Plans are coloured by their place in the plan file (``current`` first) from :data:`PLAN_STYLES`,
 whose hues are the colour-universal-design set of Okabe & Ito (2008), chosen to stay apart under

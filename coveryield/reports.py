@@ -44,7 +44,7 @@ def _signed(value: float, digits: int = 1) -> str:
 
 
 def dry_years_text(result: Comparison) -> str:
-    """The dry years as text, driest first (the order of ``summary.json`` and the dashboard)."""
+    """Format the dry years, driest first (the order of ``summary.json`` and the dashboard)."""
     return ", ".join(str(y) for y in result.dry_years)
 
 

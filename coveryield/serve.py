@@ -232,7 +232,7 @@ def serve_environment(plan_path: Path, read_only: bool, private: Mapping[str, Pa
 
 
 def missing_dashboard_packages() -> list[str]:
-    """The packages of :data:`DASHBOARD_PACKAGES` that cannot be imported here."""
+    """Return the packages of :data:`DASHBOARD_PACKAGES` that cannot be imported here."""
     import importlib.util
 
     missing = []

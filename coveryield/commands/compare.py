@@ -24,8 +24,8 @@ def add_parser(subparsers) -> None:
 def run(args: argparse.Namespace) -> int:
     """Compare the plans, print the table, optionally write the outputs."""
     from coveryield.comparison import compare
-    from coveryield.plans import load_plan
     from coveryield.output_folder import MANIFEST_NAME
+    from coveryield.plans import load_plan
     from coveryield.reports import OUTPUT_FILES, comparison_table, write_outputs
 
     plan_file = load_plan(args.plan)

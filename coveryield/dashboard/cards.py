@@ -50,15 +50,15 @@ class Card:
         self.widget.add_class("cy-card")
 
     def heading(self) -> str:
-        """The card's heading as plain text."""
+        """Return the card's heading as plain text."""
         return self.title
 
     def figures(self) -> tuple[str, str]:
-        """Main figure and detail line, as HTML (units in both)."""
+        """Return the main figure and the detail line as HTML (units in both)."""
         raise NotImplementedError
 
     def big(self, text: str) -> str:
-        """A main figure in the edited plan's colour."""
+        """Format a main figure in the colour of the plan on screen."""
         return (f'<span style="font-size:22px;font-weight:600;color:{self.state.edited_colour}">'
                 f"{text}</span>")
 
@@ -176,7 +176,7 @@ class Headline:
         self.update()
 
     def card(self, key: str) -> Card:
-        """The card of that key."""
+        """Return the card of that key."""
         return self.cards[key]
 
     def update(self, _change: dict | None = None) -> None:

@@ -37,7 +37,7 @@ EDITED_WIDTH, CURRENT_WIDTH = 4.0, 2.0
 
 
 def legend_html(entries: list[tuple[str, str, str]]) -> str:
-    """A one-line legend: (label, colour, kind) with kind ``line``, ``box`` or ``band``."""
+    """Build a one-line legend: (label, colour, kind) with kind ``line``, ``box`` or ``band``."""
     shapes = {
         "line": "width:18px;height:3px;margin-bottom:4px",
         "box": "width:11px;height:11px",
@@ -119,7 +119,7 @@ class Chart:
 
 
 def _plan_lines(x: Any, scales: dict, **kwargs) -> tuple[bqplot.Lines, bqplot.Lines]:
-    """The plan on screen (wide) and ``current`` (thin, drawn after so it stays on top)."""
+    """Build the plan on screen (wide) and ``current`` (thin, drawn after: on top)."""
     edited = bqplot.Lines(x=x, y=np.zeros(len(x)), scales=scales, stroke_width=EDITED_WIDTH,
                           colors=[palette.EDITED_FROM_CURRENT], opacities=[0.9], **kwargs)
     current = bqplot.Lines(x=x, y=np.zeros(len(x)), scales=scales, stroke_width=CURRENT_WIDTH,
@@ -304,7 +304,7 @@ class Charts:
         self.update()
 
     def chart(self, key: str) -> Chart:
-        """The chart of that key."""
+        """Return the chart of that key."""
         return self.charts[key]
 
     @property

@@ -1,5 +1,8 @@
-"""The dashboard's colours: the one palette of :mod:`coveryield.palette`, under the names the
-dashboard's views use. Nothing is defined here, so the page and the report cannot disagree."""
+"""The dashboard's colours: the one palette of :mod:`coveryield.palette`.
+
+Nothing is defined here, so the page and the report cannot disagree; the names are re-exported
+for the dashboard's views.
+"""
 
 from __future__ import annotations
 

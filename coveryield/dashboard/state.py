@@ -199,7 +199,7 @@ def rebalance(
 
 
 def default_start_plan(plan_names: list[str]) -> str:
-    """The plan the page starts from: the first plan after ``current``, else ``current``."""
+    """Return the plan the page starts from: the first after ``current``, else ``current``."""
     return plan_names[1] if len(plan_names) > 1 else plan_names[0]
 
 

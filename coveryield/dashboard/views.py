@@ -1,5 +1,6 @@
-"""Widget views of a :class:`~coveryield.dashboard.state.DashboardState`: the controls, and
-what every view shares (:class:`Guard`, :func:`signed`, :class:`ErrorArea`).
+"""Widget views of a :class:`~coveryield.dashboard.state.DashboardState`: the controls.
+
+Also what every view shares (:class:`Guard`, :func:`signed`, :class:`ErrorArea`).
 
 The headline cards live in :mod:`coveryield.dashboard.cards`, the charts in
 :mod:`coveryield.dashboard.charts`. Each view builds its widgets once, binds them to the state with

@@ -16,8 +16,15 @@ import time
 import pytest
 import requests
 
-from .conftest import CHROMIUM, CHROMIUM_ARGS, WARM, _free_port, start_server, stop_server, \
-    wait_for_log
+from .conftest import (
+    CHROMIUM,
+    CHROMIUM_ARGS,
+    WARM,
+    _free_port,
+    start_server,
+    stop_server,
+    wait_for_log,
+)
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
@@ -84,5 +91,6 @@ def test_a_dropped_viewer_is_one_line_and_a_third_viewer_is_told_busy(small):
     third = requests.get(small.url + "/", timeout=120)
     assert third.status_code == 503
     assert "try again in a few minutes" in third.text
-    assert "cdn" not in third.text.lower() and "https://" not in third.text
+    assert "cdn" not in third.text.lower()
+    assert "https://" not in third.text
     assert "refused a viewer: 2 of 2 kernels in use" in small.log()

@@ -93,7 +93,9 @@ def test_page_opens_interactive_on_a_plans_own_figures_offline(served, browser, 
     current = strokes.index(expected["current_rgb"])
     assert current > plan
     for k in (plan, current):
-        assert paths[k]["visible"] and paths[k]["width"] > 100 and paths[k]["height"] > 10
+        assert paths[k]["visible"]
+        assert paths[k]["width"] > 100
+        assert paths[k]["height"] > 10
     assert paths[current]["strokeWidth"] < paths[plan]["strokeWidth"]
     bands = [p for p in paths if p["fill"] == expected["band_rgb"]]
     assert len(bands) == len(expected["dry_years"])

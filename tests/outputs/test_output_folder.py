@@ -41,8 +41,9 @@ def no_simulation(monkeypatch):
     monkeypatch.setattr(coveryield.comparison, "simulate_catchment", forbidden)
 
 
-def test_force_never_replaces_the_climate_file_named_like_an_output(tmp_path, capsys,
-                                                                    no_simulation):
+def test_force_never_replaces_the_climate_file_named_like_an_output(
+    tmp_path, capsys, no_simulation
+):
     # the reported case: the climate record is called annual.csv and --out is the plan's folder
     plan = copy_demo(tmp_path, climate_name="annual.csv")
     before = _snapshot(tmp_path)
@@ -68,8 +69,9 @@ def test_force_never_replaces_an_input_even_if_the_manifest_lists_it(tmp_path, c
     assert _snapshot(tmp_path) == before
 
 
-def test_force_never_replaces_a_file_coveryield_did_not_write(plan_dir, tmp_path, capsys,
-                                                             no_simulation):
+def test_force_never_replaces_a_file_coveryield_did_not_write(
+    plan_dir, tmp_path, capsys, no_simulation
+):
     out = tmp_path / "results"
     out.mkdir()
     (out / "summary.json").write_text('{"mine": true}\n')
@@ -100,8 +102,9 @@ def test_force_replaces_only_coveryields_own_unchanged_outputs(plan_dir, tmp_pat
     assert (out / "annual.csv").read_text() == "edited by hand\n"
 
 
-def test_a_non_empty_folder_is_refused_before_any_simulation(plan_dir, tmp_path, capsys,
-                                                            no_simulation):
+def test_a_non_empty_folder_is_refused_before_any_simulation(
+    plan_dir, tmp_path, capsys, no_simulation
+):
     out = tmp_path / "results"
     out.mkdir()
     (out / "notes.txt").write_text("mine")
@@ -112,8 +115,9 @@ def test_a_non_empty_folder_is_refused_before_any_simulation(plan_dir, tmp_path,
 
 
 @pytest.mark.parametrize("make", ["file", "readonly"])
-def test_unusable_targets_are_refused_before_any_simulation(plan_dir, tmp_path, capsys, make,
-                                                           no_simulation, monkeypatch):
+def test_unusable_targets_are_refused_before_any_simulation(
+    plan_dir, tmp_path, capsys, make, no_simulation, monkeypatch
+):
     if make == "file":
         target = tmp_path / "results"
         target.write_text("a file")
@@ -127,8 +131,9 @@ def test_unusable_targets_are_refused_before_any_simulation(plan_dir, tmp_path, 
             import coveryield.output_folder as of
 
             real = of.os.access
-            monkeypatch.setattr(of.os, "access",
-                                lambda p, mode: False if p == locked else real(p, mode))
+            monkeypatch.setattr(
+                of.os, "access", lambda p, mode: False if p == locked else real(p, mode)
+            )
     assert _compare(plan_dir / "plans.toml", "--out", target) == 2
     assert expected in capsys.readouterr().err
 
