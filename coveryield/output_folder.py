@@ -198,8 +198,9 @@ class OutputFolder:
             return
         if not self.force:
             raise OutputError(
-                f"{out}: folder is not empty; choose a new folder, or pass --force to replace "
-                f"coveryield's own earlier outputs there (those listed in {MANIFEST_NAME})"
+                f"{out}: folder is not empty; choose a new folder, or pass --force to write into "
+                f"it anyway (coveryield then replaces only its own earlier outputs, those listed "
+                f"in {MANIFEST_NAME}, and never an input)"
             )
         manifest = read_manifest(out)
         for name in self.names:
