@@ -58,7 +58,12 @@ class KernelCap:
         return len(self.list_kernel_ids()) + self._starting
 
     async def start_kernel(self, *args: Any, **kwargs: Any) -> str:
-        """Start a kernel, or refuse a viewer with HTTP 503 when the cap is reached."""
+        """Start a viewer's kernel, or refuse the viewer with HTTP 503 when the cap is reached.
+
+        Voila's pool starts the warm kernel past this method (it calls the base class), so the
+        warm kernel is limited in :meth:`fill_if_needed` instead; a request only comes here
+        when there is no warm kernel, ready or starting, to hand over.
+        """
         pooled = (kwargs.get("env") or {}).get("VOILA_PREHEAT") == "True"
         if not pooled and self.kernels_in_use() >= self.max_kernels:
             self.log.warning(
