@@ -13,8 +13,9 @@ SHOWN = (
     "canopy_capacity_mm",
     "rooting_depth_m",
     "depletion_fraction",
+    "extinction_coefficient",
     "curve_number",
-    "fallow_kc",
+    "water_depth_m",
 )
 
 
@@ -36,6 +37,8 @@ def _value(cover, name: str) -> str:
     value = getattr(cover, name)
     if name == "curve_number":
         return " ".join(f"{group}{cn:g}" for group, cn in value.items())
+    if name == "canopy_capacity_mm" and value is None:  # sized from the leaf area
+        return f"{cover.canopy_capacity_at(cover.lai):.2g} (LAI)"
     return f"{value:g}"
 
 
@@ -61,10 +64,12 @@ def cover_lines(covers: dict) -> list[str]:
     for n in crops:
         cal = covers[n].kc_calendar
         lines.append(
-            f"{n}: Kc calendar planting day {cal.planting_doy_north} (north; +182 south), "
-            f"stages {'/'.join(map(str, cal.stage_days))} d, Kc "
-            f"{cal.kc_ini:g}/{cal.kc_mid:g}/{cal.kc_end:g}"
+            f"{n}: Kcb calendar planting day {cal.planting_doy_north} (north; +182 south), "
+            f"stages {'/'.join(map(str, cal.stage_days))} d, basal Kcb "
+            f"{cal.kcb_ini:g}/{cal.kcb_mid:g}/{cal.kcb_end:g} (FAO-56 Tables 11 and 17)"
         )
+    lines.append("(LAI): canopy store sized from the leaf area, 0.2 mm per unit LAI "
+                 "(Dickinson 1984); water_depth_m applies to open water only.")
     lines.append("")
     lines.append("Typical ranges and sources:")
     for name in SHOWN:
