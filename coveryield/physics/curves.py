@@ -37,7 +37,7 @@ ZHANG_MEAN_ABSOLUTE_ERROR_PCT = 6.0
 #: reference evaporation, for the built-in forest and pasture on the demo weather with rain
 #: x 0.6 to 2.4: (model - curve)/curve, lowest and highest [%]. Measured, and kept in step, by
 #: tests/catchment/test_zhang_band.py; README "Known limits" explains the offset.
-MODEL_OFFSET_MEASURED_PCT = (22.0, 32.0)
+MODEL_OFFSET_MEASURED_PCT = (21.0, 33.0)
 #: The model's usual offset: the measured range widened on each side by the curve's own mean
 #: absolute error. A plan whose offset lies outside it is flagged [%].
 CROSSCHECK_TYPICAL_OFFSET_PCT = (
