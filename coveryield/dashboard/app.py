@@ -14,7 +14,9 @@ from typing import Any
 import ipywidgets as widgets
 
 from coveryield.dashboard import palette
+from coveryield.comparison import YIELD_DEFINITION
 from coveryield.dashboard.exports import CAUTION
+from coveryield.dashboard.lowflow_views import LowFlowViews
 from coveryield.dashboard.state import DashboardState
 from coveryield.dashboard.views import (
     Charts,
@@ -84,6 +86,7 @@ class Dashboard(widgets.VBox):
         self.controls = ShareControls(self.state, self.guard)
         self.headline = Headline(self.state, self.guard)
         self.charts = Charts(self.state, self.guard)
+        self.low_flows = LowFlowViews(self.state, self.guard)
         self.manager = None if self.read_only else ManagerControls(
             self.state, self.guard, self.plan_path)
         left = [self.controls.widget] + ([self.manager.widget] if self.manager else [])
@@ -96,6 +99,7 @@ class Dashboard(widgets.VBox):
                               self.headline.widget],
                              layout=widgets.Layout(flex_flow="row wrap", width="100%")),
                 self.charts.widget,
+                self.low_flows.widget,
                 self._footer(),
             ],
             layout=widgets.Layout(padding="8px 16px", max_width="1280px"),
@@ -129,10 +133,10 @@ class Dashboard(widgets.VBox):
     @staticmethod
     def _footer() -> widgets.HTML:
         return widgets.HTML(
-            f'<div style="color:{palette.MUTED};font-size:12px;margin-top:6px">Yield: quickflow '
-            "plus drainage leaving the land, as depth over the whole catchment (mm) or volume "
-            "(ML; 1 ML = 1000 m\u00b3). Evaporation check: Zhang et al. (2001) curve and Fu's "
-            f"form of the Budyko framework. {html.escape(CAUTION)}</div>"
+            f'<div style="color:{palette.MUTED};font-size:12px;margin-top:6px">'
+            f"{html.escape(YIELD_DEFINITION)} Depths are over the whole catchment (mm) or "
+            "volumes (ML; 1 ML = 1000 m\u00b3). Evaporation check: Zhang et al. (2001) curve and "
+            f"Fu's form of the Budyko framework. {html.escape(CAUTION)}</div>"
         )
 
 

@@ -27,6 +27,7 @@ import numpy as np
 from coveryield.dashboard import palette
 from coveryield.dashboard.state import ALL_ZONES, ALL_ZONES_RULE, SHARE_RULE, DashboardState
 from coveryield.errors import CoveryieldError
+from coveryield.physics.curves import ZHANG_CURVE_SENTENCE
 
 MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 #: Exceedance percentages at which the flow duration curves are drawn [%].
@@ -296,7 +297,7 @@ class Headline:
         )
         self.evap_detail.value = (
             f"<span {small}>Fu's form {edited.fu_evap_mm:,.0f} mm/yr; mean annual evaporation "
-            f"of this cover mix</span>{flag}"
+            f"of this cover mix. {html.escape(ZHANG_CURVE_SENTENCE)}</span>{flag}"
         )
 
 
@@ -375,9 +376,17 @@ class Charts:
         self.marks = [self.annual, self.monthly, self.fdc, self.makeup]
         plan_legend = legend(dict(zip(plan_labels, plan_colours, strict=True)), line=True)
         cover_legend = legend(cover_colours)
+        monthly_note = widgets.HTML(
+            f'<div class="cy-yield-note" style="color:{palette.MUTED};font-size:12px">Monthly '
+            "yield includes the open-water balance (rain on ponds and lakes minus their "
+            "evaporation), so a month can be negative when the water loses more than the land "
+            "yields.</div>"
+        )
         self.widget = widgets.GridBox(
             [widgets.VBox([figure, plan_legend if figure is not self.makeup_figure
-                           else cover_legend]) for figure in self.figures],
+                           else cover_legend]
+                          + ([monthly_note] if figure is self.monthly_figure else []))
+             for figure in self.figures],
             layout=widgets.Layout(grid_template_columns="repeat(2, minmax(0, 1fr))",
                                   grid_gap="4px 12px", width="100%"),
         )

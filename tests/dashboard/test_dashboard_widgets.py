@@ -193,3 +193,29 @@ def test_show_dashboard_reads_plan_and_read_only_from_the_environment(demo_plan,
     assert dash.state.plan_file.catchment.name
     monkeypatch.setenv("COVERYIELD_READ_ONLY", "0")
     assert show_dashboard().manager is not None
+
+
+def test_low_flow_card_and_monthly_streamflow_follow_the_edit(dashboard):
+    # issue 10: 7Q, baseflow index, days below the threshold and monthly streamflow on the page
+    dash = dashboard
+    assert "7Q" in dash.low_flows.main.value
+    assert "baseflow index" in dash.low_flows.detail.value
+    assert "d/yr below 0.1" in dash.low_flows.detail.value  # the demo's low_flow_m3s
+    before = np.array(dash.low_flows.monthly_flow.y, copy=True)
+    np.testing.assert_allclose(before[1], dash.state.outcome.monthly_flow_m3s.to_numpy())
+    dash.controls.zone_picker.value = "upper"
+    dash.controls.sliders["forest"].value = 85.0
+    after = np.array(dash.low_flows.monthly_flow.y)
+    np.testing.assert_allclose(after[0], before[0])  # current unchanged
+    assert after[1].mean() < before[1].mean()  # planting lowers the flow (Farley et al. 2005)
+    assert "\u2212" in dash.low_flows.main.value
+
+
+def test_page_says_what_yield_and_the_curve_are(dashboard):
+    # issue 12 items 3 and 4: the yield definition beside the monthly chart and in the footer,
+    # and one sentence on what the Zhang curve is
+    text = " ".join(getattr(w, "value", "") for w in _all_widgets(dashboard)
+                    if isinstance(getattr(w, "value", None), str))
+    assert "open-water balance" in text
+    assert "can be negative" in text
+    assert "empirical relation, fitted to 250 catchments" in text
