@@ -45,6 +45,8 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
+from coveryield.physics.fused import _exp_poly
+
 #: Tiles per block of the blocked parameter and state arrays.
 BLOCK = 32
 
@@ -121,12 +123,6 @@ _TINY = 1e-300
 _MIN_COVER = 1e-9
 #: Beyond this k·LAI the open share exp(−k·LAI) is taken as 0 (exp(−16) ≈ 1e-7) [-].
 _CLOSED_CANOPY_KL = 16.0
-#: 1/j! for j = 0..14: Taylor coefficients of exp used by :func:`cover_fraction`.
-_EXP_TAYLOR = (
-    1.0, 1.0, 1.0 / 2.0, 1.0 / 6.0, 1.0 / 24.0, 1.0 / 120.0, 1.0 / 720.0, 1.0 / 5040.0,
-    1.0 / 40320.0, 1.0 / 362880.0, 1.0 / 3628800.0, 1.0 / 39916800.0, 1.0 / 479001600.0,
-    1.0 / 6227020800.0, 1.0 / 87178291200.0,
-)
 
 
 def pack_blocks(rows):
@@ -255,36 +251,16 @@ def cover_fraction(extinction, lai):
 
     Notes
     -----
-    exp(−x) = (exp(−x/16))¹⁶ with exp(−x/16) from its Taylor polynomial of degree 14 (relative
-    error below 2e-11 for 0 ≤ x ≤ 16): a polynomial keeps the tile loop vectorised, which a call
-    to the C library's exp would not.
+    exp(−x) comes from :func:`coveryield.physics.fused._exp_poly` (a Taylor polynomial, relative
+    error about 1e-14): a polynomial keeps the tile loop vectorised, which a call to the C
+    library's exp would not.
 
     References
     ----------
     Campbell & Norman (1998), ch. 15 (Beer's law for canopies; from memory).
     """
     x = min(extinction * lai, _CLOSED_CANOPY_KL)
-    y = -x * 0.0625
-    p = _EXP_TAYLOR[14]
-    p = p * y + _EXP_TAYLOR[13]
-    p = p * y + _EXP_TAYLOR[12]
-    p = p * y + _EXP_TAYLOR[11]
-    p = p * y + _EXP_TAYLOR[10]
-    p = p * y + _EXP_TAYLOR[9]
-    p = p * y + _EXP_TAYLOR[8]
-    p = p * y + _EXP_TAYLOR[7]
-    p = p * y + _EXP_TAYLOR[6]
-    p = p * y + _EXP_TAYLOR[5]
-    p = p * y + _EXP_TAYLOR[4]
-    p = p * y + _EXP_TAYLOR[3]
-    p = p * y + _EXP_TAYLOR[2]
-    p = p * y + _EXP_TAYLOR[1]
-    p = p * y + _EXP_TAYLOR[0]
-    p = p * p
-    p = p * p
-    p = p * p
-    p = p * p  # exp(−x)
-    return 1.0 - (0.0 if x >= _CLOSED_CANOPY_KL else p)
+    return 1.0 - (0.0 if x >= _CLOSED_CANOPY_KL else _exp_poly(-x))
 
 
 @njit(cache=True, error_model="numpy", inline="always")
