@@ -765,6 +765,9 @@ def _plain_words(error: Mapping[str, Any], model: type[BaseModel], loc: list[str
 def _describe(field) -> str:
     """Plain words for what a pydantic field accepts, e.g. 'a number greater than 0'."""
     annotation = field.annotation
+    optional = [a for a in get_args(annotation) if a is not type(None)]
+    if type(None) in get_args(annotation) and len(optional) == 1:  # e.g. float | None
+        annotation = optional[0]
     if get_origin(annotation) is Literal:
         return "one of " + ", ".join(_toml_value(a) for a in get_args(annotation))
     words = {float: "a number", int: "a whole number", bool: "true or false", str: "text",
