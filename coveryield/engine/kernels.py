@@ -19,7 +19,8 @@ zero-division checks; the caller guarantees that the divisors are positive.
 Speed
 -----
 At thousands of tiles the loop is bound by memory traffic as much as by arithmetic: every day
-it reads the forcing rows (the leaf area row only when it varies by day, see ``lai_step``), writes the yield row and re-reads the parameters and state of
+it reads the forcing rows (the leaf-area and cover rows only when they vary by day, see
+``lai_step``), writes the yield row and re-reads the parameters and state of
 every tile, which together barely fit the L2 cache. Hence the lean rows: an open-water tile is
 marked by a negative canopy capacity instead of a flag row; interception and open-water
 evaporation (never both non-zero on one tile) share one running sum; and an invalid input day
@@ -45,24 +46,22 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-from coveryield.physics.fused import _exp_poly
 
 #: Tiles per block of the blocked parameter and state arrays.
 BLOCK = 32
 
 # Rows of the blocked parameter array.
 P_CAPACITY = 0  # canopy storage per unit LAI [mm]; WATER_CAPACITY marks an open-water tile
-P_EXTINCTION = 1  # Beer's-law extinction coefficient k of the canopy [-]
-P_INV_RAIN_RATE = 2  # 1 / rainfall intensity [h mm⁻¹]
-P_RETENTION_DRY = 3  # SCS retention S for AMC I [mm]
-P_RETENTION_AVERAGE = 4  # SCS retention S for AMC II [mm]
-P_RETENTION_WET = 5  # SCS retention S for AMC III [mm]
-P_TAW = 6  # total available water [mm]
-P_INV_TAW = 7  # 1 / TAW [mm⁻¹]
-P_INV_READILY_SPAN = 8  # 1 / ((1 − p)·TAW) [mm⁻¹]
-P_TEW = 9  # total evaporable water of the surface layer [mm]
-P_INV_STAGE2_SPAN = 10  # 1 / (TEW − REW) [mm⁻¹]
-N_PAR = 11
+P_INV_RAIN_RATE = 1  # 1 / rainfall intensity [h mm⁻¹]
+P_RETENTION_DRY = 2  # SCS retention S for AMC I [mm]
+P_RETENTION_AVERAGE = 3  # SCS retention S for AMC II [mm]
+P_RETENTION_WET = 4  # SCS retention S for AMC III [mm]
+P_TAW = 5  # total available water [mm]
+P_INV_TAW = 6  # 1 / TAW [mm⁻¹]
+P_INV_READILY_SPAN = 7  # 1 / ((1 − p)·TAW) [mm⁻¹]
+P_TEW = 8  # total evaporable water of the surface layer [mm]
+P_INV_STAGE2_SPAN = 9  # 1 / (TEW − REW) [mm⁻¹]
+N_PAR = 10
 
 #: Canopy capacity that marks an open-water tile (any negative value does) [mm].
 WATER_CAPACITY = -1.0
@@ -121,8 +120,6 @@ _TINY = 1e-300
 #: Smallest canopy cover fraction used as a divisor: a canopy without leaves keeps a vanishing
 #: share so that per-covered-area quantities stay finite [-].
 _MIN_COVER = 1e-9
-#: Beyond this k·LAI the open share exp(−k·LAI) is taken as 0 (exp(−16) ≈ 1e-7) [-].
-_CLOSED_CANOPY_KL = 16.0
 
 
 def pack_blocks(rows):
@@ -224,43 +221,18 @@ def canopy_day(rain_mm, wet_mm, capacity_mm, inv_rain_rate_h_per_mm, store_mm):
     rainfall interception in forests, 1. Agric. Meteorol., 9, 367–384.
     """
     hours = min(_HOURS_PER_DAY, rain_mm * inv_rain_rate_h_per_mm)  # D = min(24, P/R)
-    rate = wet_mm * _PER_HOUR  # e = E_wet / 24 [mm h⁻¹]
-    unclipped = store_mm + rain_mm - rate * hours  # x = S0 + P − e·D
-    evap_storm = min(rate * hours, store_mm + rain_mm)
-    throughfall = max(unclipped - capacity_mm, 0.0)
-    store_after_rain = min(max(unclipped, 0.0), capacity_mm)
-    evap_after = min(store_after_rain, rate * (_HOURS_PER_DAY - hours))
-    return evap_storm + evap_after, throughfall, store_after_rain - evap_after
+    return _canopy_storm(rain_mm, hours, wet_mm * _PER_HOUR, capacity_mm, store_mm)
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def cover_fraction(extinction, lai):
-    """Canopy cover fraction c = 1 − exp(−k·LAI) (Beer's law), branch-free.
-
-    Parameters
-    ----------
-    extinction : float
-        Extinction coefficient k, > 0 [-].
-    lai : float
-        Leaf area index, ≥ 0 [m² m⁻²].
-
-    Returns
-    -------
-    float
-        c [-]; exactly 1 when k·LAI ≥ 16.
-
-    Notes
-    -----
-    exp(−x) comes from :func:`coveryield.physics.fused._exp_poly` (a Taylor polynomial, relative
-    error about 1e-14): a polynomial keeps the tile loop vectorised, which a call to the C
-    library's exp would not.
-
-    References
-    ----------
-    Campbell & Norman (1998), ch. 15 (Beer's law for canopies; from memory).
-    """
-    x = min(extinction * lai, _CLOSED_CANOPY_KL)
-    return 1.0 - (0.0 if x >= _CLOSED_CANOPY_KL else _exp_poly(-x))
+def _canopy_storm(rain_mm, hours, rate_mm_per_h, capacity_mm, store_mm):
+    """The closed form of :func:`canopy_day` for a storm of ``hours`` and a loss ``rate``."""
+    unclipped = store_mm + rain_mm - rate_mm_per_h * hours  # x = S0 + P − e·D
+    evap_storm = min(rate_mm_per_h * hours, store_mm + rain_mm)
+    throughfall = max(unclipped - capacity_mm, 0.0)
+    store_after_rain = min(max(unclipped, 0.0), capacity_mm)
+    evap_after = min(store_after_rain, rate_mm_per_h * (_HOURS_PER_DAY - hours))
+    return evap_storm + evap_after, throughfall, store_after_rain - evap_after
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -293,19 +265,22 @@ def sparse_canopy_day(rain_mm, wet_mm, cover, capacity_mm, inv_rain_rate_h_per_m
     The sparse-canopy form of Gash, Lloyd & Lachaud (1995): rain on the open share 1 − c falls
     straight through; the covered share holds Sc = S/c per unit of its own area and evaporates
     at the wet-canopy rate there, by :func:`canopy_day`. Ground-area values are c times the
-    covered-area ones. A canopy losing leaves (S or c falling) drips what it can no longer hold.
+    covered-area ones, so the storm is computed per unit ground area directly: rain c·P and
+    loss rate c·E_wet on a store of capacity S, the storm lasting as long as the gross rain
+    (D = min(24, P/R)). A canopy losing leaves (S or c falling) drips what it can no longer
+    hold.
 
     References
     ----------
     Gash, J. H. C., Lloyd, C. R. & Lachaud, G. (1995). Estimating sparse forest rainfall
     interception with an analytical model. J. Hydrol., 170, 79-86.
     """
-    covered = max(cover, _MIN_COVER)
-    per_cover = 1.0 / covered
-    loss, drip, store_end = canopy_day(
-        rain_mm, wet_mm, capacity_mm * per_cover, inv_rain_rate_h_per_mm, store_mm * per_cover
+    hours = min(_HOURS_PER_DAY, rain_mm * inv_rain_rate_h_per_mm)  # D = min(24, P/R)
+    on_canopy = cover * rain_mm
+    loss, drip, store_end = _canopy_storm(
+        on_canopy, hours, cover * wet_mm * _PER_HOUR, capacity_mm, store_mm
     )
-    return covered * loss, (1.0 - covered) * rain_mm + covered * drip, covered * store_end
+    return loss, rain_mm - on_canopy + drip, store_end
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -365,13 +340,13 @@ def surface_layer_evaporation(
     Allen, R. G., Pereira, L. S., Raes, D. & Smith, M. (1998). FAO Irrigation and Drainage
     Paper 56, eqs. 71, 74, 77 and 79.
     """
-    depletion = max(depletion_mm - infiltration_mm, 0.0)  # FAO-56 eqs. 77, 79
-    depletion = max(depletion, tew_mm - root_zone_water_mm)
-    kr = min(max((tew_mm - depletion) * inv_stage2_span, 0.0), 1.0)  # FAO-56 eq. 74
+    # FAO-56 eqs. 77, 79: rain rewets first; the layer holds no more than the root zone
+    depletion = max(depletion_mm - infiltration_mm, max(tew_mm - root_zone_water_mm, 0.0))
+    left = tew_mm - depletion  # evaporable water left in the layer, 0..TEW
+    kr = min(left * inv_stage2_span, 1.0)  # FAO-56 eq. 74
     exposed_cap = exposed * kc_max_et0_mm  # few·Kc,max·ETo, eq. 71
-    room = exposed * max(tew_mm - depletion, 0.0)  # De stays ≤ TEW
-    evaporation = min(min(kr * energy_mm, exposed_cap), min(room, root_zone_water_mm))
-    evaporation = max(evaporation, 0.0)
+    evaporation = min(min(kr * energy_mm, exposed_cap), min(exposed * left, root_zone_water_mm))
+    evaporation = max(evaporation, 0.0)  # rounding can leave `left` a hair below 0
     return evaporation, depletion + evaporation / max(exposed, _MIN_COVER)  # FAO-56 eq. 77
 
 
@@ -440,8 +415,8 @@ def tile_day(
     dry,
     soil_pot,
     lai,
+    cover,
     capacity_per_lai,
-    extinction,
     inv_rain_rate,
     retention_dry,
     retention_average,
@@ -471,10 +446,10 @@ def tile_day(
         Energy left for soil evaporation, (Kc,max − Kcb)·ETo [mm d⁻¹].
     lai : float
         Leaf area index of the day [m² m⁻²].
+    cover : float
+        Canopy cover fraction of the day, c = 1 − exp(−k·LAI) (Beer's law), 0..1 [-].
     capacity_per_lai : float
         Canopy storage per unit LAI [mm].
-    extinction : float
-        Beer's-law extinction coefficient k [-].
     inv_rain_rate : float
         1 / rainfall intensity while raining [h mm⁻¹].
     retention_dry, retention_average, retention_wet : float
@@ -504,8 +479,8 @@ def tile_day(
 
     Notes
     -----
-    Order: canopy (:func:`sparse_canopy_day`, with S = capacity_per_lai·LAI and
-    c = :func:`cover_fraction`); quickflow from throughfall (:func:`curve_number_runoff` with
+    Order: canopy (:func:`sparse_canopy_day`, with S = capacity_per_lai·LAI and the day's
+    cover c); quickflow from throughfall (:func:`curve_number_runoff` with
     :func:`wetness_retention`); root zone: transpiration, then soil evaporation from the surface
     layer (:func:`surface_layer_evaporation`); drainage of the water above TAW.
 
@@ -531,7 +506,6 @@ def tile_day(
     Burgy, R. H. & Pomeroy, C. R. (1958). Interception losses in grassy vegetation. Trans. AGU,
     39(6), 1095-1100.
     """
-    cover = cover_fraction(extinction, lai)
     interception, throughfall, canopy_end = sparse_canopy_day(
         rain, wet, cover, capacity_per_lai * lai, inv_rain_rate, canopy_store
     )
@@ -542,8 +516,7 @@ def tile_day(
     infiltration = throughfall - quickflow
     available = soil_store + infiltration
 
-    covered = max(cover, _MIN_COVER)
-    wet_energy_used = min(interception / max(covered * wet, _TINY), 1.0)  # E_int / (c E_wet)
+    wet_energy_used = min(interception / max(cover * wet, _TINY), 1.0)  # E_int / (c E_wet)
     ks = min(soil_store * inv_readily_span, 1.0)  # FAO-56 eq. 84
     transpiration = min(ks * dry * (1.0 - wet_energy_used), available)
     kc_max_et0 = soil_pot + dry  # Kc,max·ETo (the forcing's soil_pot is Kc,max·ETo − E_dry)
@@ -632,6 +605,7 @@ def _run(
     dry,
     soil_pot,
     lai,
+    cover,
     lai_step,
     year_index,
     par,
@@ -648,8 +622,9 @@ def _run(
 
     The daily outputs are written straight from the vectorised tile loop: staging them in state
     rows and copying them out afterwards cost a second pass over the tiles every day.
-    ``lai[d * lai_step, t]`` is the leaf area of day ``d``: ``lai_step`` 0 reads one row of
-    constant leaf areas (it stays in cache), 1 reads a row per day.
+    ``lai[d * lai_step, t]`` and ``cover[d * lai_step, t]`` are the leaf area and cover fraction
+    of day ``d``: ``lai_step`` 0 reads one row of constant values (it stays in cache), 1 reads a
+    row per day.
     """
     n_days, n_tiles = rain.shape
     n_blocks = (n_tiles + BLOCK - 1) // BLOCK
@@ -676,8 +651,8 @@ def _run(
                     dr,
                     sp,
                     la,
+                    cover[dl, t0 + j],
                     capacity,
-                    par[p0 + P_EXTINCTION * BLOCK + j],
                     par[p0 + P_INV_RAIN_RATE * BLOCK + j],
                     par[p0 + P_RETENTION_DRY * BLOCK + j],
                     par[p0 + P_RETENTION_AVERAGE * BLOCK + j],
@@ -721,7 +696,9 @@ def _run(
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annual, daily_yield):
+def run_tiles(
+    rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield
+):
     """Run the daily water balance of many tiles and accumulate annual sums.
 
     Parameters
@@ -729,10 +706,12 @@ def run_tiles(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annu
     rain, wet, dry, soil_pot : ndarray, shape (n_days, n_tiles), C-contiguous float64
         Gross rain, wet-canopy evaporation (per covered area), dry-canopy transpiration and the
         energy left for soil evaporation [mm d⁻¹].
-    lai : ndarray, shape (n_days, n_tiles) or (1, n_tiles), C-contiguous float64
-        Leaf area index per day, or one constant row [m² m⁻²].
+    lai, cover : ndarray, shape (n_days, n_tiles) or (1, n_tiles), C-contiguous float64
+        Leaf area index [m² m⁻²] and canopy cover fraction 1 − exp(−k·LAI) [-] per day, or one
+        constant row each (the caller computes the cover: an exp per tile-day would cost the
+        loop more than reading a row).
     lai_step : int
-        1 when ``lai`` has a row per day, 0 for one constant row [-].
+        1 when ``lai`` and ``cover`` have a row per day, 0 for one constant row [-].
     year_index : ndarray of int64, shape (n_days,)
         Year number of each day, non-decreasing from 0 in steps of 0 or 1 [-].
     par : ndarray, shape (n_blocks·N_PAR·BLOCK,)
@@ -750,12 +729,12 @@ def run_tiles(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annu
     -----
     The daily physics is :func:`tile_day`.
     """
-    _run(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annual, daily_yield,
+    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield,
          daily_yield, annual, True, False, False)
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles_routed(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annual,
+def run_tiles_routed(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual,
                      daily_yield, daily_drainage):
     """Run as :func:`run_tiles` does, also keeping each day's drainage (for two-store routing).
 
@@ -764,25 +743,25 @@ def run_tiles_routed(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, s
     daily_drainage : ndarray, shape (n_days, n_tiles), same dtype as ``daily_yield``
         Drainage below the root zone of each day out [mm d⁻¹].
     """
-    _run(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annual, daily_yield,
+    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield,
          daily_drainage, annual, True, True, False)
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles_annual(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annual):
+def run_tiles_annual(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual):
     """Run as :func:`run_tiles` does, keeping the annual sums only (no daily yield).
 
     Parameters
     ----------
-    rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annual
+    rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual
         As for :func:`run_tiles`.
     """
-    _run(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annual, annual, annual,
+    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, annual, annual,
          annual, False, False, False)
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles_daily(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annual,
+def run_tiles_daily(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual,
                     daily_yield, daily_drainage, daily):
     """Run as :func:`run_tiles_routed` does, also keeping every daily flux and store.
 
@@ -796,5 +775,5 @@ def run_tiles_daily(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st
     -----
     Separate kernels rather than run-time flags keep the fast kernel free of the extra stores.
     """
-    _run(rain, wet, dry, soil_pot, lai, lai_step, year_index, par, st, annual, daily_yield,
+    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield,
          daily_drainage, daily, True, True, True)

@@ -30,6 +30,7 @@ from dataclasses import dataclass, fields
 import numpy as np
 
 from coveryield.engine import kernels
+from coveryield.physics.canopy import canopy_cover_fraction
 
 #: Mean rainfall intensity while it rains [mm h⁻¹]: typical of frontal rain in temperate
 #: maritime climates; common practice, no source.
@@ -42,8 +43,6 @@ DEFAULT_TOTAL_EVAPORABLE_MM = 19.0
 #: Extinction coefficient of Beer's law for leaves at random angles (Campbell & Norman 1998,
 #: from memory) [-].
 DEFAULT_EXTINCTION = 0.5
-#: k·LAI of a tile given no leaf area: a closed canopy (cover fraction exactly 1) [-].
-_CLOSED_CANOPY_EXTINCTION = 1000.0
 
 #: Root-zone store at the start of a run as a fraction of TAW [-]. Half-full is our choice: it
 #: is the value whose error is smallest in the worst case (a record that starts in a wet winter
@@ -311,14 +310,8 @@ def _kernel_parameters(params: TileParameters) -> np.ndarray:
     lai = params.reference_lai()
     with np.errstate(divide="ignore", invalid="ignore"):
         per_lai = np.where(lai > 0, params.canopy_capacity_mm / lai, 0.0)
-    closed = params.leaf_area_index is None
     rows = [None] * kernels.N_PAR
     rows[kernels.P_CAPACITY] = np.where(water, kernels.WATER_CAPACITY, per_lai)
-    rows[kernels.P_EXTINCTION] = (
-        np.full(params.n_tiles, _CLOSED_CANOPY_EXTINCTION)
-        if closed
-        else params.extinction_coefficient
-    )
     rows[kernels.P_INV_RAIN_RATE] = 1.0 / params.rain_rate_mm_per_h
     rows[kernels.P_RETENTION_DRY] = retention_mm(dry_curve_number(cn))
     rows[kernels.P_RETENTION_AVERAGE] = retention_mm(cn)
@@ -393,6 +386,15 @@ def _leaf_area(lai, params: TileParameters, shape):
             "leaf area index per day and tile"
         )
     return array, 1
+
+
+def _cover_rows(leaf_area, params: TileParameters) -> np.ndarray:
+    """Canopy cover fraction for the kernel's leaf-area rows: 1 − exp(−k·LAI), 1 if closed."""
+    if params.leaf_area_index is None:
+        return np.ones_like(leaf_area)
+    with np.errstate(invalid="ignore"):  # an invalid leaf area is reported by the kernel
+        cover = canopy_cover_fraction(leaf_area, params.extinction_coefficient)
+    return np.ascontiguousarray(np.nan_to_num(cover, nan=0.0))
 
 
 def _raise_first_bad_value(arrays, bad_tiles):
@@ -577,7 +579,8 @@ def simulate_tiles(
         raise ValueError("out: given with keep_daily_yield=False (expected None)")
     if keep_daily or keep_daily_drainage:
         drainage = np.empty((n_days, n_tiles), dtype=daily_yield.dtype)
-    inputs = (*forcing, leaf_area, lai_step, years, par, state, annual)
+    cover = _cover_rows(leaf_area, params)
+    inputs = (*forcing, leaf_area, cover, lai_step, years, par, state, annual)
     if keep_daily:
         daily = np.empty((kernels.N_DAILY, n_days, n_tiles))
         kernels.run_tiles_daily(*inputs, daily_yield, drainage, daily)

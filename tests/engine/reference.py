@@ -11,7 +11,6 @@ import math
 
 import numpy as np
 
-CLOSED_AT_KL = 16.0  # documented: the canopy counts as closed (c = 1) from k·LAI = 16 on
 
 
 def _interception(rain, wet, capacity, rain_rate, store):
@@ -58,7 +57,7 @@ def _scs_runoff(water, retention):
 
 def _cover_fraction(k, lai, closed):
     """Beer's law c = 1 − exp(−k·LAI); 1 for a closed canopy."""
-    if closed or k * lai >= CLOSED_AT_KL:
+    if closed:
         return 1.0
     return 1.0 - math.exp(-k * lai)
 
@@ -140,11 +139,14 @@ def reference_run(rain, wet, dry, soil, params, year_index, lai=None):
             else:
                 leaf = own_lai if lai is None else float(lai[d, t])
                 c = _cover_fraction(k, leaf, closed)
-                cs = max(c, 1e-9)  # documented floor of the covered share
-                e_int, through, canopy = _interception(
-                    P, Ew, per_lai * leaf / cs, float(params.rain_rate_mm_per_h[t]), canopy / cs
-                )
-                e_int, through, canopy = cs * e_int, (1.0 - cs) * P + cs * through, cs * canopy
+                if c > 0.0:  # per unit covered area, then back to ground area
+                    e_int, through, store_c = _interception(
+                        P, Ew, per_lai * leaf / c, float(params.rain_rate_mm_per_h[t]), canopy / c
+                    )
+                    e_int, through, canopy = c * e_int, (1.0 - c) * P + c * through, c * store_c
+                else:  # no leaves: the canopy drips what it held
+                    e_int, through, canopy = 0.0, P + canopy, 0.0
+                cs = c
                 wetness = store / taw
                 quick = _scs_runoff(
                     through, _retention_for_wetness(float(params.curve_number[t]), wetness)
@@ -156,7 +158,7 @@ def reference_run(rain, wet, dry, soil, params, year_index, lai=None):
                     if root_depletion <= readily
                     else (taw - root_depletion) / ((1.0 - p) * taw)
                 )
-                used = e_int / (cs * Ew) if Ew > 0 else 0.0
+                used = e_int / (cs * Ew) if Ew > 0 and cs > 0 else 0.0
                 water_now = store + through - quick
                 transp = min(ks * Ed * (1.0 - min(used, 1.0)), water_now)
                 water_now -= transp

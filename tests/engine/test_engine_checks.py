@@ -123,11 +123,13 @@ def test_rain_on_the_open_share_falls_through():
 
 
 def test_cover_fraction_is_beers_law():
-    # c = 1 - exp(-k LAI) (Beer's law; Campbell & Norman 1998, from memory); the compiled form
-    # uses a polynomial, accurate to well below 1e-10
-    for k, lai in [(0.5, 0.0), (0.5, 2.88), (0.4, 6.0), (0.9, 12.0), (0.5, 31.0)]:
-        expected = 1.0 - math.exp(-k * lai) if k * lai < 16.0 else 1.0
-        assert kernels.cover_fraction(k, lai) == pytest.approx(expected, abs=1e-12)
+    # c = 1 - exp(-k LAI) (Beer's law; Campbell & Norman 1998, from memory): a tile with LAI 2.88
+    # and k = 0.5 keeps 1 - c = exp(-1.44) = 23.7 % of the ground exposed, so it evaporates
+    # exactly that share of the exposed-share cap few·Kc,max·ETo (FAO-56 eq. 71; ours, C)
+    params = _bare_soil(leaf_area_index=[2.88], extinction_coefficient=0.5)
+    rain, wet, dry, soil, years = _days(0.0, dry=0.0, soil=4.0)
+    run = simulate_tiles(rain, wet, dry, soil, params, years, keep_daily=True)
+    assert run.daily["soil_evap_mm"][0, 0] == pytest.approx(math.exp(-1.44) * 4.0, rel=1e-12)
 
 
 def test_small_storm_is_all_intercepted_and_store_carries_over():

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 import pytest
 from hypothesis import given, settings
@@ -68,8 +70,8 @@ def test_py_func_runs_without_the_compiler():
         3.0,  # dry
         0.5,  # soil energy
         2.88,  # lai
+        1.0 - math.exp(-0.5 * 2.88),  # cover
         0.2,  # capacity per lai
-        0.5,  # extinction
         1 / 1.5,
         400.0,
         169.0,
@@ -87,10 +89,11 @@ def test_py_func_runs_without_the_compiler():
     assert kernels.tile_day.py_func(*day) == pytest.approx(kernels.tile_day(*day))
     # the whole run through .py_func (its inner helpers stay compiled)
     case = make_case(seed=5, n_days=30, n_tiles=3, n_years=1)
-    from coveryield.engine.water_balance import _initial_state, _kernel_parameters
+    from coveryield.engine.water_balance import _cover_rows, _initial_state, _kernel_parameters
 
     outputs = []
     lai = case.params.reference_lai().reshape(1, -1)
+    cover = _cover_rows(lai, case.params)
     for runner in (kernels.run_tiles, kernels.run_tiles.py_func):
         state = _initial_state(case.params)
         annual = np.zeros((8, 1, 3))
@@ -101,6 +104,7 @@ def test_py_func_runs_without_the_compiler():
             case.dry,
             case.soil,
             lai,
+            cover,
             0,
             case.year_index,
             _kernel_parameters(case.params),
