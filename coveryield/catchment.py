@@ -10,8 +10,9 @@ so a share change costs microseconds.
 Yield, here and in every output, is the water the catchment delivers to its streams: quickflow
 and drainage from the land plus the net balance of open water (rain on the water minus its
 evaporation, negative when the water loses more than it receives). The two parts are also kept
-apart (``land_yield_mm`` and ``open_water_net_mm``). Streamflow routes the quickflow and the
-open-water balance through a fast linear store and the drainage through the groundwater store.
+apart (``land_yield_mm`` and ``open_water_net_mm``). Streamflow routes the quickflow through a
+fast linear store, and the drainage and the open-water balance through the groundwater store (so
+the net loss of ponds and lakes in a dry summer draws down the baseflow).
 """
 
 from __future__ import annotations
@@ -23,11 +24,7 @@ import pandas as pd
 
 from coveryield.climate import Climate, read_climate
 from coveryield.engine.kernels import ANNUAL_NAMES
-from coveryield.engine.routing import (
-    mm_per_day_to_m3_per_s,
-    route_series,
-    weighted_column_sum,
-)
+from coveryield.engine.routing import mix_and_route, mm_per_day_to_m3_per_s
 from coveryield.engine.water_balance import TileParameters, simulate_tiles
 from coveryield.errors import PlanFileError
 from coveryield.forcing import cover_evaporation, reference_et
@@ -55,8 +52,7 @@ class TileResults:
     recession_days : float
         Recession constant of the groundwater store that routes drainage to streamflow [day].
     quickflow_recession_days : float
-        Recession constant of the fast store that routes quickflow and the open-water balance
-        to streamflow [day].
+        Recession constant of the fast store that routes quickflow to streamflow [day].
     is_water : numpy.ndarray of bool
         True for each open-water tile [-].
     years : numpy.ndarray
@@ -71,8 +67,10 @@ class TileResults:
         Quickflow plus drainage (rain minus evaporation for open water), (n_days, n_tiles),
         stored column-major so that each tile's series is contiguous for the weighted sums
         [mm d-1 over the tile].
-    daily_drainage_mm : numpy.ndarray
-        Drainage below the root zone, laid out as ``daily_yield_mm`` [mm d-1 over the tile].
+    daily_slow_mm : numpy.ndarray
+        The part of the daily yield that feeds the groundwater store: drainage below the root
+        zone, and for open water its whole balance (rain − evaporation); laid out as
+        ``daily_yield_mm`` [mm d-1 over the tile].
     month_of_day : numpy.ndarray of int
         Calendar month (1-12) of each day in a complete year, 0 for the other days [-].
     monthly_yield_mm : numpy.ndarray
@@ -96,7 +94,7 @@ class TileResults:
     annual: dict[str, np.ndarray]
     dates: pd.DatetimeIndex
     daily_yield_mm: np.ndarray
-    daily_drainage_mm: np.ndarray
+    daily_slow_mm: np.ndarray
     month_of_day: np.ndarray
     monthly_yield_mm: np.ndarray
     rain_mean_mm: np.ndarray
@@ -151,7 +149,7 @@ class MixedSeries:
     daily_yield_mm : numpy.ndarray
         Catchment yield per day (land yield plus the open-water balance) [mm d-1].
     flow_m3s : numpy.ndarray
-        Streamflow: quickflow and the open-water balance routed through the fast store, drainage
+        Streamflow: quickflow routed through the fast store, drainage and the open-water balance
         through the groundwater store [m3 s-1].
     monthly_yield_mm : numpy.ndarray
         Mean yield per calendar month, (12,) [mm month-1].
@@ -194,10 +192,13 @@ def mix_tiles(tiles: TileResults, weights: np.ndarray) -> MixedSeries:
         Catchment results [mm over the catchment; flow in m3 s-1].
     """
     annual = {name: values @ weights for name, values in tiles.annual.items()}
-    daily_yield = weighted_column_sum(tiles.daily_yield_mm, weights)
-    drainage = weighted_column_sum(tiles.daily_drainage_mm, weights)
-    routed_mm = route_series(daily_yield - drainage, tiles.quickflow_recession_days) + route_series(
-        drainage, tiles.recession_days
+    daily_yield, routed_mm, monthly_routed_mm = mix_and_route(
+        tiles.daily_yield_mm,
+        tiles.daily_slow_mm,
+        np.ascontiguousarray(weights, dtype=np.float64),
+        float(tiles.quickflow_recession_days),
+        float(tiles.recession_days),
+        tiles.month_of_day,
     )
     flow = mm_per_day_to_m3_per_s(routed_mm, tiles.area_km2)
     water_weights = np.where(tiles.is_water, weights, 0.0)
@@ -210,32 +211,11 @@ def mix_tiles(tiles: TileResults, weights: np.ndarray) -> MixedSeries:
         monthly_yield_mm=monthly_yield,
         monthly_land_yield_mm=monthly_yield - monthly_open_water,
         monthly_open_water_mm=monthly_open_water,
-        monthly_flow_m3s=monthly_mean_by_day(flow, tiles.month_of_day),
+        monthly_flow_m3s=mm_per_day_to_m3_per_s(monthly_routed_mm, tiles.area_km2),
         model_evap_mm=float(tiles.evap_mean_mm @ weights),
         zhang_evap_mm=float(tiles.zhang_evap_mm @ weights),
         fu_evap_mm=float(tiles.fu_evap_mm @ weights),
     )
-
-
-def monthly_mean_by_day(daily: np.ndarray, month_of_day: np.ndarray) -> np.ndarray:
-    """Mean of a daily series per calendar month, over the days with a month code 1-12.
-
-    Parameters
-    ----------
-    daily : numpy.ndarray, shape (n_days,)
-        Daily values [any unit].
-    month_of_day : numpy.ndarray of int, shape (n_days,)
-        Calendar month of each day to count (1-12), 0 for days to leave out [-].
-
-    Returns
-    -------
-    numpy.ndarray, shape (12,)
-        Mean per month, January first [unit of ``daily``]; NaN for a month without days.
-    """
-    sums = np.bincount(month_of_day, weights=daily, minlength=13)[1:]
-    counts = np.bincount(month_of_day, minlength=13)[1:]
-    with np.errstate(invalid="ignore", divide="ignore"):
-        return np.where(counts > 0, sums / np.maximum(counts, 1), np.nan)
 
 
 def curve_evaporation(rain_mean_mm, et0_mean_mm, evap_mean_mm, bases):
@@ -436,7 +416,9 @@ def simulate_catchment(
         annual=annual,
         dates=dates,
         daily_yield_mm=np.asfortranarray(run.daily_yield_mm),
-        daily_drainage_mm=np.asfortranarray(run.daily_drainage_mm),
+        daily_slow_mm=np.asfortranarray(
+            np.where(is_water, run.daily_yield_mm, run.daily_drainage_mm)
+        ),
         month_of_day=np.where(in_complete, dates.month, 0).astype(np.int64),
         monthly_yield_mm=monthly_means(run.daily_yield_mm[in_complete], dates[in_complete]),
         rain_mean_mm=rain_mean,

@@ -114,8 +114,8 @@ class PlanOutcome:
         Mean yield per calendar month (index 1-12) [mm month-1]: land yield plus the open-water
         balance, negative in a month when open water loses more than the land yields.
     flow_m3s : pandas.Series
-        Daily streamflow: quickflow and the open-water balance routed through the fast store,
-        drainage through the groundwater store [m3 s-1].
+        Daily streamflow: quickflow routed through the fast store, drainage and the open-water
+        balance through the groundwater store [m3 s-1].
     fdc : pandas.DataFrame
         Flow duration curve (``exceedance_pct`` [%], ``flow_m3s`` [m3 s-1]).
     model_evap_mm, zhang_evap_mm, fu_evap_mm : float

@@ -83,10 +83,10 @@ class CatchmentSpec(BaseModel):
         no radiation or sunshine data (FAO-56 eq. 50).
     recession_days : float
         Recession constant of the groundwater store that routes drainage (water percolating
-        below the root zone) to streamflow [day], default 30.
+        below the root zone) and the open-water balance to streamflow [day], default 30.
     quickflow_recession_days : float
-        Recession constant of the fast store that routes quickflow and the open-water balance
-        to streamflow [day], default 2.
+        Recession constant of the fast store that routes quickflow to streamflow [day],
+        default 2.
     rain_rate_mm_per_h : float
         Mean rainfall intensity during rain, used by canopy interception [mm h-1], default 1.5.
     low_flow_m3s : float or None

@@ -498,7 +498,7 @@ def _method_text(spec) -> str:
             "what the soil cannot hold leaves as quickflow or drainage. "
             f"{_esc(YIELD_DEFINITION)} A plan's results are the tiles mixed by their area "
             "shares, so every plan is compared on the same weather. Daily streamflow routes "
-            "quickflow and the open-water balance through a fast linear store (recession "
+            "quickflow through a fast linear store (recession "
             f"constant {spec.quickflow_recession_days:g} days) and drainage through a "
             f"groundwater store ({spec.recession_days:g} days); the flow duration curve, Q95, "
             "the 7-day low flow (7Q: the mean over the years of each year's lowest 7-day mean "

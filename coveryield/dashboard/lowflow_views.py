@@ -43,8 +43,8 @@ class LowFlowViews:
         self.figure.add_class("cy-monthly-flow")
         note = widgets.HTML(
             f'<div style="color:{palette.MUTED};font-size:12px;line-height:1.35">'
-            f"{html.escape(YIELD_DEFINITION)} Streamflow routes quickflow and the open-water "
-            "balance through a fast store and drainage through the groundwater store.</div>"
+            f"{html.escape(YIELD_DEFINITION)} Streamflow routes quickflow through a fast store, "
+            "drainage and the open-water balance through the groundwater store.</div>"
         )
         self.widget = widgets.VBox(
             [box, widgets.VBox([self.figure, legend(dict(zip(labels, colours, strict=True)),
