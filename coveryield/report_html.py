@@ -454,8 +454,8 @@ def _charts(result: Comparison) -> list[tuple[str, str]]:
             _fdc_chart,
             (9.0, 3.3),
             "Flow duration curve per plan: daily streamflow (quickflow through the fast store, "
-            "drainage through the groundwater store) against the share of days it is equalled "
-            "or exceeded; log flow axis.",
+            "drainage and the open-water balance through the groundwater store) against the "
+            "share of days it is equalled or exceeded; log flow axis.",
         ),
         (
             _change_chart,
@@ -499,10 +499,11 @@ def _method_text(spec) -> str:
             f"{_esc(YIELD_DEFINITION)} A plan's results are the tiles mixed by their area "
             "shares, so every plan is compared on the same weather. Daily streamflow routes "
             "quickflow through a fast linear store (recession "
-            f"constant {spec.quickflow_recession_days:g} days) and drainage through a "
-            f"groundwater store ({spec.recession_days:g} days); the flow duration curve, Q95, "
+            f"constant {spec.quickflow_recession_days:g} days), and drainage and the open-water "
+            f"balance through a groundwater store ({spec.recession_days:g} days); the flow "
+            "duration curve, Q95, "
             "the 7-day low flow (7Q: the mean over the years of each year's lowest 7-day mean "
-            "flow) and the baseflow index (Lyne & Hollick 1979 filter, alpha 0.925, three "
+            "flow) and the baseflow index (Lyne &amp; Hollick 1979 filter, alpha 0.925, three "
             "passes) are taken from it.",
         ]
     )
