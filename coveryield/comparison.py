@@ -563,6 +563,8 @@ class Comparison:
                 "crosscheck_offset_pct": o.crosscheck_offset_pct,
                 "crosscheck_differs": o.crosscheck_flag,
                 "crosscheck_reason": o.crosscheck_reason,
+                "monthly_yield_mm": [float(v) for v in o.monthly_yield_mm],
+                "monthly_flow_m3s": [float(v) for v in o.monthly_flow_m3s],
             }
             if name != "current":
                 c = self.change(o)

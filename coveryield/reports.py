@@ -145,6 +145,7 @@ def comparison_table(result: Comparison) -> str:
             )
         lines.append(row)
     lines += [""] + _low_flow_lines(result)
+    lines += [""] + _monthly_lines(result)
     low, high = CROSSCHECK_TYPICAL_OFFSET_PCT
     lines += [
         "",
@@ -161,6 +162,22 @@ def comparison_table(result: Comparison) -> str:
         f"CAUTION: {CAUTION}",
     ]
     return "\n".join(lines)
+
+
+def _monthly_lines(result: Comparison) -> list[str]:
+    """The third table: mean yield [mm/month] and routed streamflow [m3/s] per calendar month."""
+    months = "JFMAMJJASOND"
+    lines = [
+        f"{'per calendar month':<24}{'':<11}" + "".join(f"{m:>7}" for m in months),
+        "-" * (35 + 7 * 12),
+    ]
+    for name in result.plan_names:
+        o = result.outcome(name)
+        lines.append(f"{name[:23]:<24}{'mm/month':<11}"
+                     + "".join(f"{rounded(float(v), 1):>7.1f}" for v in o.monthly_yield_mm))
+        lines.append(f"{'':<24}{'m3/s':<11}"
+                     + "".join(f"{rounded(float(v), 3):>7.3f}" for v in o.monthly_flow_m3s))
+    return lines
 
 
 def _low_flow_lines(result: Comparison) -> list[str]:

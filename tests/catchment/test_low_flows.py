@@ -127,7 +127,8 @@ def test_outputs_carry_low_flows_and_yield_terms_rounded(tmp_path, capsys):
     out = tmp_path / "results"
     assert main(["compare", str(DEMO / "plans.toml"), "--out", str(out)]) == 0
     printed = capsys.readouterr().out
-    for expected in ("7Q", "BFI", "open water", "The Zhang et al. (2001) curve is"):
+    for expected in ("7Q", "BFI", "open water", "The Zhang et al. (2001) curve is",
+                     "per calendar month", "m3/s"):
         assert expected in printed
     summary = json.loads((out / "summary.json").read_text())
     current = summary["plans"]["current"]
@@ -135,6 +136,8 @@ def test_outputs_carry_low_flows_and_yield_terms_rounded(tmp_path, capsys):
                 "mean_land_yield_mm", "mean_open_water_net_mm", "crosscheck_offset_pct"):
         assert key in current
     assert "q7_change_pct" in summary["plans"]["plant-upper"]
+    assert len(current["monthly_flow_m3s"]) == 12
+    assert len(current["monthly_yield_mm"]) == 12
     assert "open water" in summary["yield_definition"]
     monthly = (out / "monthly.csv").read_text()
     assert "current flow_m3s" in monthly
