@@ -50,7 +50,8 @@ class TileResults:
     area_km2 : float
         Catchment area [km2].
     recession_days : float
-        Recession constant of the groundwater store that routes drainage to streamflow [day].
+        Recession constant of the groundwater store that routes drainage and the open-water
+        balance to streamflow [day].
     quickflow_recession_days : float
         Recession constant of the fast store that routes quickflow to streamflow [day].
     is_water : numpy.ndarray of bool

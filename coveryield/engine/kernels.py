@@ -43,8 +43,12 @@ set the soil-evaporation rate, while its water is counted in the soil store, so 
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 from numba import njit
+
+from coveryield.physics.fused import _exp_poly
 
 
 #: Tiles per block of the blocked parameter and state arrays.
@@ -117,9 +121,9 @@ N_DAILY = 10
 _HOURS_PER_DAY = 24.0
 _PER_HOUR = 1.0 / 24.0
 _TINY = 1e-300
-#: Smallest canopy cover fraction used as a divisor: a canopy without leaves keeps a vanishing
-#: share so that per-covered-area quantities stay finite [-].
-_MIN_COVER = 1e-9
+#: Smallest exposed share used as a divisor (a closed canopy exposes none, and then evaporates
+#: nothing from the soil, so the quotient is 0) [-].
+_MIN_EXPOSED = 1e-9
 
 
 def pack_blocks(rows):
@@ -235,6 +239,48 @@ def _canopy_storm(rain_mm, hours, rate_mm_per_h, capacity_mm, store_mm):
     return evap_storm + evap_after, throughfall, store_after_rain - evap_after
 
 
+#: Exponents below this are taken by math.exp rather than the polynomial (its range ends at −16).
+_POLY_EXP_MIN = -16.0
+
+
+@njit(cache=True, error_model="numpy")
+def cover_fraction_rows(lai, extinction, out):
+    """Canopy cover fraction c = 1 − exp(−k·LAI) (Beer's law) of every day and tile.
+
+    Parameters
+    ----------
+    lai : ndarray, shape (n_rows, n_tiles)
+        Leaf area index, ≥ 0 [m² m⁻²].
+    extinction : ndarray, shape (n_tiles,)
+        Extinction coefficient k of each tile, > 0 [-].
+    out : ndarray, shape (n_rows, n_tiles)
+        Filled with c [-].
+
+    Notes
+    -----
+    exp comes from the branch-free polynomial :func:`coveryield.physics.fused._exp_poly`
+    (relative error about 1e-14), so the loop vectorises; the rare k·LAI beyond 16 is redone
+    with math.exp. Computed once per run, outside the day loop.
+
+    References
+    ----------
+    Campbell & Norman (1998), ch. 15 (Beer's law for canopies; from memory).
+    """
+    n_rows, n_tiles = lai.shape
+    outside = 0
+    for d in range(n_rows):
+        for t in range(n_tiles):
+            x = -extinction[t] * lai[d, t]
+            outside += x < _POLY_EXP_MIN
+            out[d, t] = 1.0 - _exp_poly(max(x, _POLY_EXP_MIN))
+    if outside:
+        for d in range(n_rows):
+            for t in range(n_tiles):
+                x = -extinction[t] * lai[d, t]
+                if x < _POLY_EXP_MIN:
+                    out[d, t] = 1.0 - math.exp(x)
+
+
 @njit(cache=True, error_model="numpy", inline="always")
 def sparse_canopy_day(rain_mm, wet_mm, cover, capacity_mm, inv_rain_rate_h_per_mm, store_mm):
     """Intercept one day's rain on a canopy that covers a share ``cover`` of the ground.
@@ -347,7 +393,7 @@ def surface_layer_evaporation(
     exposed_cap = exposed * kc_max_et0_mm  # few·Kc,max·ETo, eq. 71
     evaporation = min(min(kr * energy_mm, exposed_cap), min(exposed * left, root_zone_water_mm))
     evaporation = max(evaporation, 0.0)  # rounding can leave `left` a hair below 0
-    return evaporation, depletion + evaporation / max(exposed, _MIN_COVER)  # FAO-56 eq. 77
+    return evaporation, depletion + evaporation / max(exposed, _MIN_EXPOSED)  # FAO-56 eq. 77
 
 
 @njit(cache=True, error_model="numpy", inline="always")

@@ -30,7 +30,6 @@ from dataclasses import dataclass, fields
 import numpy as np
 
 from coveryield.engine import kernels
-from coveryield.physics.canopy import canopy_cover_fraction
 
 #: Mean rainfall intensity while it rains [mm h⁻¹]: typical of frontal rain in temperate
 #: maritime climates; common practice, no source.
@@ -392,9 +391,9 @@ def _cover_rows(leaf_area, params: TileParameters) -> np.ndarray:
     """Canopy cover fraction for the kernel's leaf-area rows: 1 − exp(−k·LAI), 1 if closed."""
     if params.leaf_area_index is None:
         return np.ones_like(leaf_area)
-    with np.errstate(invalid="ignore"):  # an invalid leaf area is reported by the kernel
-        cover = canopy_cover_fraction(leaf_area, params.extinction_coefficient)
-    return np.ascontiguousarray(np.nan_to_num(cover, nan=0.0))
+    cover = np.empty_like(leaf_area)
+    kernels.cover_fraction_rows(leaf_area, params.extinction_coefficient, cover)
+    return cover
 
 
 def _raise_first_bad_value(arrays, bad_tiles):
