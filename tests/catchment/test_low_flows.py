@@ -147,3 +147,11 @@ def test_outputs_carry_low_flows_and_yield_terms_rounded(tmp_path, capsys):
         text = (out / name).read_text()
         assert "e-" not in text.replace("e-mail", ""), name
         assert "-0.0," not in text and "-0.0\n" not in text, name
+
+
+def test_printed_table_without_a_threshold_says_how_to_set_one(afforestation):
+    from coveryield.reports import comparison_table
+
+    text = comparison_table(afforestation)
+    assert "set low_flow_m3s in [catchment]" in text
+    assert afforestation.outcome("current").days_below_per_year is None

@@ -343,3 +343,29 @@ def test_bad_shapes_and_years_are_rejected():
         simulate_tiles(rain, wet, dry, soil, _one_tile(), np.array([0, 2]))
     with pytest.raises(ValueError, match=r"year_index\[0\] = 1"):
         simulate_tiles(rain, wet, dry, soil, _one_tile(), np.array([1, 1]))
+
+
+def test_bad_daily_leaf_area_is_reported():
+    rain, wet, dry, soil, years = _days([1.0, 2.0, 3.0])
+    params = _one_tile(leaf_area_index=[2.0], canopy_capacity_mm=[0.4])
+    lai = np.array([[2.0], [-1.0], [2.0]])
+    with pytest.raises(ValueError, match=r"lai\[day 1, tile 0\] = -1.0: expected a finite value"):
+        simulate_tiles(rain, wet, dry, soil, params, years, lai=lai)
+    with pytest.raises(ValueError, match=r"lai: shape \(2, 1\), expected \(3, 1\)"):
+        simulate_tiles(rain, wet, dry, soil, params, years, lai=lai[:2])
+
+
+def test_leaf_area_needed_for_a_canopy_store():
+    with pytest.raises(ValueError, match="leaf_area_index.*store scales with leaf area"):
+        _one_tile(leaf_area_index=[0.0], canopy_capacity_mm=[1.0])
+
+
+def test_store_follows_the_day_leaf_area():
+    # capacity 1.2 mm at LAI 6 is 0.2 mm per unit LAI (Dickinson 1984, from memory): on a day
+    # with LAI 3 the canopy holds 0.6 mm; closed cover (k large) so all rain meets the canopy
+    params = _one_tile(canopy_capacity_mm=[1.2], leaf_area_index=[6.0],
+                       extinction_coefficient=50.0)
+    rain, wet, dry, soil, years = _days(5.0)
+    run = simulate_tiles(rain, wet, dry, soil, params, years, lai=np.array([[3.0]]),
+                         keep_daily=True)
+    assert run.daily["canopy_store_mm"][0, 0] == pytest.approx(0.6)
