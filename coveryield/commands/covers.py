@@ -48,18 +48,18 @@ def cover_lines(covers: dict) -> list[str]:
 
     names = list(covers)
     width = max(12, *(len(n) + 2 for n in names))
-    lines = [f"{'parameter':<20}{'unit':<8}" + "".join(f"{n:>{width}}" for n in names)]
+    lines = [f"{'parameter':<24}{'unit':<8}" + "".join(f"{n:>{width}}" for n in names)]
     lines.append(
-        f"{'(derives from)':<20}{'':<8}" + "".join(f"{covers[n].base:>{width}}" for n in names)
+        f"{'(derives from)':<24}{'':<8}" + "".join(f"{covers[n].base:>{width}}" for n in names)
     )
     for name in SHOWN:
         unit = PARAMETER_INFO[name][0]
         cells = "".join(f"{_value(covers[n], name):>{width}}" for n in names)
         if name == "curve_number":  # four groups do not fit a column: own lines
-            lines.append(f"{name:<20}{unit:<8}(hydrologic soil groups A-D)")
+            lines.append(f"{name:<24}{unit:<8}(hydrologic soil groups A-D)")
             lines += [f"{'':<4}{n:<24}{_value(covers[n], name)}" for n in names]
             continue
-        lines.append(f"{name:<20}{unit:<8}{cells}")
+        lines.append(f"{name:<24}{unit:<8}{cells}")
     crops = [n for n in names if covers[n].kc_calendar is not None]
     for n in crops:
         cal = covers[n].kc_calendar
