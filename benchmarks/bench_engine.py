@@ -18,6 +18,7 @@ Run: ``cd /work/main && PYTHONPATH=. .venv/bin/python benchmarks/bench_engine.py
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import time
 
 import numpy as np
@@ -113,8 +114,20 @@ def main(argv=None):
         n_days, n_tiles = many[0].shape
         reused64 = np.empty((n_days, n_tiles))
         reused32 = np.empty((n_days, n_tiles), dtype=np.float32)
+        rng = np.random.default_rng(1)
+        season = 0.5 * (1.0 - np.cos(2.0 * np.pi * (np.arange(n_days) % 365) / 365.0))
+        daily_lai = np.ascontiguousarray(
+            np.outer(season, rng.uniform(1.0, 6.0, n_tiles))
+        )  # leaf area per day and tile, as crops have
+        leafy = dataclasses.replace(many[4], leaf_area_index=np.full(n_tiles, 3.0))
         variants = {
             "out= reused, float64": lambda: simulate_tiles(*many, out=reused64),
+            "out= reused, sparse canopy, daily LAI": lambda: simulate_tiles(
+                *many[:4], leafy, many[5], lai=daily_lai, out=reused64
+            ),
+            "with daily drainage (catchment routing)": lambda: simulate_tiles(
+                *many, keep_daily_drainage=True
+            ),
             "fresh output, float64": lambda: simulate_tiles(*many),
             "out= reused, float32": lambda: simulate_tiles(*many, out=reused32),
             "fresh output, float32": lambda: simulate_tiles(*many, daily_dtype=np.float32),

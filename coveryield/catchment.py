@@ -1,10 +1,18 @@
 """Catchment layer: simulate every tile of a plan file once, then mix tiles by plan shares.
 
 A tile is one cover in one zone. :func:`simulate_catchment` builds each zone's climate, the
-cover's potential evaporation rates and the engine parameters, runs the daily loop once for all
-tiles, and keeps compact results (annual fluxes, daily yield, monthly means, long-term means).
-:func:`mix_tiles` turns any set of shares into catchment results as a weighted sum of those tile
-results — it never runs the daily loop again, so a share change costs microseconds.
+cover's potential evaporation rates, its leaf area through the year and the engine parameters,
+runs the daily loop once for all tiles, and keeps compact results (annual fluxes, daily yield and
+drainage, monthly means, long-term means). :func:`mix_tiles` turns any set of shares into
+catchment results as a weighted sum of those tile results — it never runs the daily loop again,
+so a share change costs microseconds.
+
+Yield, here and in every output, is the water the catchment delivers to its streams: quickflow
+and drainage from the land plus the net balance of open water (rain on the water minus its
+evaporation, negative when the water loses more than it receives). The two parts are also kept
+apart (``land_yield_mm`` and ``open_water_net_mm``). Streamflow routes the quickflow through a
+fast linear store, and the drainage and the open-water balance through the groundwater store (so
+the net loss of ponds and lakes in a dry summer draws down the baseflow).
 """
 
 from __future__ import annotations
@@ -16,11 +24,7 @@ import pandas as pd
 
 from coveryield.climate import Climate, read_climate
 from coveryield.engine.kernels import ANNUAL_NAMES
-from coveryield.engine.routing import (
-    mm_per_day_to_m3_per_s,
-    route_series,
-    weighted_column_sum,
-)
+from coveryield.engine.routing import mix_and_route, mm_per_day_to_m3_per_s
 from coveryield.engine.water_balance import TileParameters, simulate_tiles
 from coveryield.errors import PlanFileError
 from coveryield.forcing import cover_evaporation, reference_et
@@ -46,17 +50,30 @@ class TileResults:
     area_km2 : float
         Catchment area [km2].
     recession_days : float
-        Recession constant of the groundwater store used to route yield to streamflow [day].
+        Recession constant of the groundwater store that routes drainage and the open-water
+        balance to streamflow [day].
+    quickflow_recession_days : float
+        Recession constant of the fast store that routes quickflow to streamflow [day].
+    is_water : numpy.ndarray of bool
+        True for each open-water tile [-].
     years : numpy.ndarray
         Complete calendar years of the record, one row per year in ``annual``.
     annual : dict of str -> numpy.ndarray
         Per flux in :data:`coveryield.engine.kernels.ANNUAL_NAMES`, array (n_years, n_tiles)
-        [mm yr-1 over the tile].
+        [mm yr-1 over the tile]; ``quickflow_mm`` is the land's only, and
+        ``open_water_net_mm`` holds rain minus evaporation of open-water tiles.
     dates : pandas.DatetimeIndex
         Every simulated day.
     daily_yield_mm : numpy.ndarray
-        Quickflow plus drainage, (n_days, n_tiles), stored column-major so that each tile's
-        series is contiguous for the weighted sums [mm d-1 over the tile].
+        Quickflow plus drainage (rain minus evaporation for open water), (n_days, n_tiles),
+        stored column-major so that each tile's series is contiguous for the weighted sums
+        [mm d-1 over the tile].
+    daily_slow_mm : numpy.ndarray
+        The part of the daily yield that feeds the groundwater store: drainage below the root
+        zone, and for open water its whole balance (rain − evaporation); laid out as
+        ``daily_yield_mm`` [mm d-1 over the tile].
+    month_of_day : numpy.ndarray of int
+        Calendar month (1-12) of each day in a complete year, 0 for the other days [-].
     monthly_yield_mm : numpy.ndarray
         Mean yield per calendar month over complete years, (12, n_tiles) [mm month-1].
     rain_mean_mm, et0_mean_mm, evap_mean_mm : numpy.ndarray
@@ -72,10 +89,14 @@ class TileResults:
     zone_area_share: dict[str, float]
     area_km2: float
     recession_days: float
+    quickflow_recession_days: float
+    is_water: np.ndarray
     years: np.ndarray
     annual: dict[str, np.ndarray]
     dates: pd.DatetimeIndex
     daily_yield_mm: np.ndarray
+    daily_slow_mm: np.ndarray
+    month_of_day: np.ndarray
     monthly_yield_mm: np.ndarray
     rain_mean_mm: np.ndarray
     et0_mean_mm: np.ndarray
@@ -127,11 +148,18 @@ class MixedSeries:
     annual : dict of str -> numpy.ndarray
         Per flux, (n_years,) [mm yr-1 over the catchment].
     daily_yield_mm : numpy.ndarray
-        Catchment yield per day [mm d-1].
+        Catchment yield per day (land yield plus the open-water balance) [mm d-1].
     flow_m3s : numpy.ndarray
-        Streamflow: daily yield routed through the linear groundwater store [m3 s-1].
+        Streamflow: quickflow routed through the fast store, drainage and the open-water balance
+        through the groundwater store [m3 s-1].
     monthly_yield_mm : numpy.ndarray
         Mean yield per calendar month, (12,) [mm month-1].
+    monthly_land_yield_mm, monthly_open_water_mm : numpy.ndarray
+        Its two parts: quickflow plus drainage from the land, and rain minus evaporation of open
+        water (negative in months when the water loses more than it receives), (12,)
+        [mm month-1].
+    monthly_flow_m3s : numpy.ndarray
+        Mean streamflow per calendar month, (12,) [m3 s-1].
     model_evap_mm, zhang_evap_mm, fu_evap_mm : float
         Mean annual evaporation from the daily model, the Zhang et al. (2001) curve and Fu's form,
         each as the area-weighted sum over tiles [mm yr-1].
@@ -141,6 +169,9 @@ class MixedSeries:
     daily_yield_mm: np.ndarray
     flow_m3s: np.ndarray
     monthly_yield_mm: np.ndarray
+    monthly_land_yield_mm: np.ndarray
+    monthly_open_water_mm: np.ndarray
+    monthly_flow_m3s: np.ndarray
     model_evap_mm: float
     zhang_evap_mm: float
     fu_evap_mm: float
@@ -162,13 +193,26 @@ def mix_tiles(tiles: TileResults, weights: np.ndarray) -> MixedSeries:
         Catchment results [mm over the catchment; flow in m3 s-1].
     """
     annual = {name: values @ weights for name, values in tiles.annual.items()}
-    daily_yield = weighted_column_sum(tiles.daily_yield_mm, weights)
-    routed_mm = route_series(daily_yield, tiles.recession_days)
+    daily_yield, routed_mm, monthly_routed_mm = mix_and_route(
+        tiles.daily_yield_mm,
+        tiles.daily_slow_mm,
+        np.ascontiguousarray(weights, dtype=np.float64),
+        float(tiles.quickflow_recession_days),
+        float(tiles.recession_days),
+        tiles.month_of_day,
+    )
+    flow = mm_per_day_to_m3_per_s(routed_mm, tiles.area_km2)
+    water_weights = np.where(tiles.is_water, weights, 0.0)
+    monthly_open_water = tiles.monthly_yield_mm @ water_weights
+    monthly_yield = tiles.monthly_yield_mm @ weights
     return MixedSeries(
         annual=annual,
         daily_yield_mm=daily_yield,
-        flow_m3s=mm_per_day_to_m3_per_s(routed_mm, tiles.area_km2),
-        monthly_yield_mm=tiles.monthly_yield_mm @ weights,
+        flow_m3s=flow,
+        monthly_yield_mm=monthly_yield,
+        monthly_land_yield_mm=monthly_yield - monthly_open_water,
+        monthly_open_water_mm=monthly_open_water,
+        monthly_flow_m3s=mm_per_day_to_m3_per_s(monthly_routed_mm, tiles.area_km2),
         model_evap_mm=float(tiles.evap_mean_mm @ weights),
         zhang_evap_mm=float(tiles.zhang_evap_mm @ weights),
         fu_evap_mm=float(tiles.fu_evap_mm @ weights),
@@ -248,16 +292,23 @@ def tile_parameters(plan_file: PlanFile, tiles: list[tuple[str, str]]) -> TilePa
     Returns
     -------
     TileParameters
-        Canopy capacity [mm], root-zone capacity = rooting depth x 1000 x available water
-        capacity [mm] (FAO-56 eq. 82), depletion fraction [-], curve number of the zone's soil
-        group [-], water flag, rain intensity [mm h-1].
+        Canopy capacity at the cover's leaf area [mm] and that leaf area [m2 m-2], extinction
+        coefficient [-], root-zone capacity = rooting depth x 1000 x available water capacity
+        [mm] (FAO-56 eq. 82), depletion fraction [-], curve number of the zone's soil group [-],
+        water flag, rain intensity [mm h-1], and the surface layer's REW and TEW from the zone's
+        soil texture [mm] (FAO-56 Table 19).
     """
     zones = {zone.name: zone for zone in plan_file.zones}
     covers = [plan_file.covers[cover] for _, cover in tiles]
     soils = [zones[zone] for zone, _ in tiles]
     n = len(tiles)
+    surface = np.array([z.surface_layer_mm for z in soils]).reshape(n, 2)
     return TileParameters(
-        canopy_capacity_mm=np.array([c.canopy_capacity_mm for c in covers]),
+        canopy_capacity_mm=np.array([c.canopy_capacity_at(c.lai) for c in covers]),
+        leaf_area_index=np.array([c.lai for c in covers]),
+        extinction_coefficient=np.array([c.extinction_coefficient for c in covers]),
+        readily_evaporable_mm=surface[:, 0],
+        total_evaporable_mm=surface[:, 1],
         root_zone_capacity_mm=np.array(
             [
                 1000.0 * c.rooting_depth_m * z.awc_m3_per_m3
@@ -311,6 +362,7 @@ def simulate_catchment(
     dates = next(iter(climates.values())).daily.index
     n_days = len(dates)
     rain, wet, dry, soil = (np.empty((n_days, len(tiles))) for _ in range(4))
+    lai = daily_leaf_area(plan_file, tiles, dates)
     et0_by_zone = {}
     for k, (zone, cover_name) in enumerate(
         tqdm(tiles, desc="potential evaporation per tile", unit="tile", disable=not progress)
@@ -328,7 +380,14 @@ def simulate_catchment(
 
     year_codes, year_values = pd.factorize(dates.year, sort=True)
     run = simulate_tiles(
-        rain, wet, dry, soil, tile_parameters(plan_file, tiles), year_codes.astype(np.int64)
+        rain,
+        wet,
+        dry,
+        soil,
+        tile_parameters(plan_file, tiles),
+        year_codes.astype(np.int64),
+        lai=lai,
+        keep_daily_drainage=True,
     )
     keep = np.isin(np.asarray(year_values), complete_years(dates))
     if not keep.any():
@@ -336,7 +395,10 @@ def simulate_catchment(
             f"{plan_file.catchment.climate}: the climate record holds no complete calendar year; "
             "expected at least one year from 1 January to 31 December"
         )
+    is_water = np.array([plan_file.covers[cover].is_water for _, cover in tiles])
     annual = {name: getattr(run.annual, name)[keep] for name in ANNUAL_NAMES}
+    annual["open_water_net_mm"] = np.where(is_water, annual["quickflow_mm"], 0.0)
+    annual["quickflow_mm"] = np.where(is_water, 0.0, annual["quickflow_mm"])
     in_complete = np.isin(dates.year, np.asarray(year_values)[keep])
     rain_mean = annual["rain_mm"].mean(axis=0)
     et0_mean = np.array([annual_mean(et0_by_zone[zone], dates, in_complete) for zone, _ in tiles])
@@ -349,10 +411,16 @@ def simulate_catchment(
         zone_area_share={zone.name: zone.area_share for zone in plan_file.zones},
         area_km2=plan_file.catchment.area_km2,
         recession_days=plan_file.catchment.recession_days,
+        quickflow_recession_days=plan_file.catchment.quickflow_recession_days,
+        is_water=is_water,
         years=np.asarray(year_values)[keep],
         annual=annual,
         dates=dates,
         daily_yield_mm=np.asfortranarray(run.daily_yield_mm),
+        daily_slow_mm=np.asfortranarray(
+            np.where(is_water, run.daily_yield_mm, run.daily_drainage_mm)
+        ),
+        month_of_day=np.where(in_complete, dates.month, 0).astype(np.int64),
         monthly_yield_mm=monthly_means(run.daily_yield_mm[in_complete], dates[in_complete]),
         rain_mean_mm=rain_mean,
         et0_mean_mm=et0_mean,
@@ -361,6 +429,31 @@ def simulate_catchment(
         fu_evap_mm=fu,
         notes=tuple(next(iter(climates.values())).notes),
     )
+
+
+def daily_leaf_area(plan_file: PlanFile, tiles, dates: pd.DatetimeIndex) -> np.ndarray | None:
+    """Leaf area index of each tile and day, or None when every tile keeps its own all year.
+
+    Parameters
+    ----------
+    plan_file : PlanFile
+        The catchment and covers.
+    tiles : list of (str, str)
+        (zone, cover) per tile.
+    dates : pandas.DatetimeIndex
+        Every simulated day.
+
+    Returns
+    -------
+    numpy.ndarray, shape (n_days, n_tiles), or None
+        Leaf area index [m2 m-2] (crops follow their season); None if no cover varies.
+    """
+    covers = [plan_file.covers[cover] for _, cover in tiles]
+    if all(c.kc_calendar is None for c in covers):
+        return None
+    doy = dates.dayofyear.to_numpy()
+    latitude = plan_file.catchment.latitude_deg
+    return np.column_stack([c.leaf_area_index(doy, latitude) for c in covers])
 
 
 def monthly_means(daily_mm: np.ndarray, dates: pd.DatetimeIndex) -> np.ndarray:

@@ -6,8 +6,10 @@ plain objects holding pandas tables; nothing is printed or written here (see
 :mod:`coveryield.reports`).
 
 All depths are mm over the whole catchment; volumes in ML (1 mm over 1 km2 = 1 ML); flows in
-m3 s-1. Results are screening estimates, to be confirmed by licensed hydrological practice and
-local regulations.
+m3 s-1. Yield is the water the catchment delivers to its streams: quickflow and drainage from the
+land (``land_yield_mm``) plus the net balance of open water (``open_water_net_mm``: rain on the
+water minus its evaporation, negative when the water loses more than it receives). Results are
+screening estimates, to be confirmed by licensed hydrological practice and local regulations.
 """
 
 from __future__ import annotations
@@ -20,7 +22,21 @@ import numpy as np
 import pandas as pd
 
 from coveryield.catchment import MixedSeries, TileResults, mix_tiles, simulate_catchment
-from coveryield.physics.curves import CROSSCHECK_TOLERANCE
+from coveryield.flow_metrics import (
+    LOW_FLOW_WINDOW_DAYS,
+    LYNE_HOLLICK_ALPHA,
+    LYNE_HOLLICK_PASSES,
+    annual_minimum_moving_mean,
+    baseflow_index,
+    days_below_per_year,
+)
+from coveryield.physics.curves import (
+    CROSSCHECK_CHANGE_TOLERANCE_PCT,
+    CROSSCHECK_TYPICAL_OFFSET_PCT,
+    ZHANG_CURVE_SENTENCE,
+    crosscheck_offset_pct,
+    crosscheck_reason,
+)
 from coveryield.plans import PlanFile, load_plan, validate_shares
 
 CAUTION = (
@@ -38,6 +54,8 @@ ANNUAL_COLUMNS = (
     "open_water_mm",
     "quickflow_mm",
     "drainage_mm",
+    "land_yield_mm",
+    "open_water_net_mm",
     "yield_mm",
     "storage_change_mm",
     "yield_ml",
@@ -47,6 +65,13 @@ ANNUAL_COLUMNS = (
 FDC_EXCEEDANCE_PCT = np.concatenate([[0.1, 0.5], np.arange(1.0, 100.0, 1.0), [99.5, 99.9]])
 
 SECONDS_PER_YEAR = 365.25 * 86400.0
+
+#: What "yield" means everywhere (tables, report, page, README).
+YIELD_DEFINITION = (
+    "Yield is the water the catchment delivers to its streams: quickflow and drainage from the "
+    "land (land yield) plus the net balance of open water (rain on ponds and lakes minus their "
+    "evaporation), which is negative in months when the water loses more than it receives."
+)
 
 
 def flow_duration_curve(flow_m3s: np.ndarray) -> pd.DataFrame:
@@ -86,15 +111,32 @@ class PlanOutcome:
     annual : pandas.DataFrame
         One row per complete year (index ``year``), columns :data:`ANNUAL_COLUMNS`.
     monthly_yield_mm : pandas.Series
-        Mean yield per calendar month (index 1-12) [mm month-1].
+        Mean yield per calendar month (index 1-12) [mm month-1]: land yield plus the open-water
+        balance, negative in a month when open water loses more than the land yields.
     flow_m3s : pandas.Series
-        Daily streamflow: yield routed through the groundwater store [m3 s-1].
+        Daily streamflow: quickflow routed through the fast store, drainage and the open-water
+        balance through the groundwater store [m3 s-1].
     fdc : pandas.DataFrame
         Flow duration curve (``exceedance_pct`` [%], ``flow_m3s`` [m3 s-1]).
     model_evap_mm, zhang_evap_mm, fu_evap_mm : float
         Mean annual evaporation: daily model, Zhang et al. (2001) curve, Fu's form [mm yr-1].
     area_km2 : float
         Catchment area [km2].
+    monthly_land_yield_mm, monthly_open_water_mm : pandas.Series
+        The two parts of ``monthly_yield_mm`` (index 1-12) [mm month-1].
+    monthly_flow_m3s : pandas.Series
+        Mean streamflow per calendar month (index 1-12) [m3 s-1].
+    q7_m3s : float
+        Mean over the complete years of the year's lowest 7-day mean flow (7Q) [m3 s-1].
+    baseflow_index : float
+        Share of streamflow that the Lyne & Hollick filter (alpha 0.925, three passes) calls
+        baseflow [-].
+    days_below_per_year : float or None
+        Days per year with flow below ``low_flow_m3s`` [d yr-1]; None without a threshold.
+    low_flow_m3s : float or None
+        The threshold flow of the plan file's ``[catchment]`` [m3 s-1].
+    baseline_offset_pct : float or None
+        Model-vs-Zhang offset of the baseline plan ``current`` [%]; None for ``current``.
     """
 
     name: str
@@ -107,6 +149,14 @@ class PlanOutcome:
     zhang_evap_mm: float
     fu_evap_mm: float
     area_km2: float
+    monthly_land_yield_mm: pd.Series | None = None
+    monthly_open_water_mm: pd.Series | None = None
+    monthly_flow_m3s: pd.Series | None = None
+    q7_m3s: float = float("nan")
+    baseflow_index: float = float("nan")
+    days_below_per_year: float | None = None
+    low_flow_m3s: float | None = None
+    baseline_offset_pct: float | None = None
 
     @property
     def mean_yield_mm(self) -> float:
@@ -129,23 +179,36 @@ class PlanOutcome:
         return float(self.fdc["flow_m3s"].to_numpy()[FDC_EXCEEDANCE_PCT == 95.0][0])
 
     @property
+    def crosscheck_offset_pct(self) -> float:
+        """How much more the daily model evaporates than the Zhang curve, 100·(model/curve − 1) [%]."""
+        return crosscheck_offset_pct(self.model_evap_mm, self.zhang_evap_mm)
+
+    @property
+    def crosscheck_reason(self) -> str:
+        """Why the cross-check is flagged, in words; empty when it is not flagged."""
+        return crosscheck_reason(self.crosscheck_offset_pct, self.baseline_offset_pct)
+
+    @property
     def crosscheck_flag(self) -> bool:
-        """True when the daily model and the Zhang curve differ by more than the tolerance."""
-        return bool(
-            abs(self.model_evap_mm - self.zhang_evap_mm) > CROSSCHECK_TOLERANCE * self.zhang_evap_mm
-        )
+        """True when the offset leaves the model's usual range or moves from the baseline's."""
+        return bool(self.crosscheck_reason)
 
     @property
     def crosscheck_note(self) -> str:
-        """One sentence comparing the daily model with the Zhang curve."""
-        diff = self.model_evap_mm - self.zhang_evap_mm
-        pct = 100.0 * diff / self.zhang_evap_mm
-        verdict = "differs by more than" if self.crosscheck_flag else "is within"
-        return (
-            f"Daily model evaporation {self.model_evap_mm:.0f} mm/yr vs Zhang curve "
-            f"{self.zhang_evap_mm:.0f} mm/yr ({pct:+.0f} %): {verdict} the "
-            f"{100 * CROSSCHECK_TOLERANCE:.0f} % tolerance."
+        """Two sentences: the model-vs-curve difference with its meaning, and the verdict."""
+        offset = self.crosscheck_offset_pct
+        more = "more" if offset >= 0 else "less"
+        low, high = CROSSCHECK_TYPICAL_OFFSET_PCT
+        text = (
+            f"The daily model evaporates {self.model_evap_mm:,.0f} mm/yr, {abs(offset):.0f} % "
+            f"{more} than the Zhang curve's {self.zhang_evap_mm:,.0f} mm/yr for this cover mix "
+            f"({low:+.0f} to {high:+.0f} % is usual for this model"
         )
+        if self.baseline_offset_pct is not None:
+            text += f"; current plan {self.baseline_offset_pct:+.0f} %"
+        text += ")."
+        reason = self.crosscheck_reason
+        return text + (f" Flagged: {reason}." if reason else " Not flagged.")
 
 
 @dataclass(frozen=True)
@@ -168,6 +231,12 @@ class PlanChange:
         Change in Q95, the flow exceeded on 95 % of days [m3 s-1].
     q95_pct : float
         Change in Q95 [% of the baseline].
+    q7_m3s, q7_pct : float
+        Change in the mean annual 7-day minimum flow [m3 s-1] and [% of the baseline].
+    baseflow_index : float
+        Change in the baseflow index [-].
+    days_below_per_year : float or None
+        Change in days per year below the low-flow threshold [d yr-1]; None without one.
     """
 
     yield_mm: float
@@ -177,6 +246,10 @@ class PlanChange:
     driest_year_mm: float
     q95_m3s: float
     q95_pct: float
+    q7_m3s: float = float("nan")
+    q7_pct: float = float("nan")
+    baseflow_index: float = float("nan")
+    days_below_per_year: float | None = None
 
 
 def _pct(change: float, base: float) -> float:
@@ -204,6 +277,10 @@ class Comparison:
         #: Driest 10 % of complete years by catchment rain (at least one), driest first.
         self.dry_years: list[int] = [int(y) for y in rain.sort_values().index[:n_dry]]
         self.driest_year: int = self.dry_years[0]
+        #: Days of complete years, and their year code 0, 1, … (−1 for the other days).
+        self._complete = tiles.month_of_day > 0
+        codes = np.searchsorted(tiles.years, np.asarray(tiles.dates.year))
+        self._year_code = np.where(self._complete, codes, -1)
         self._outcome = functools.lru_cache(maxsize=None)(self._plan_outcome)
 
     @property
@@ -262,27 +339,45 @@ class Comparison:
 
     def _outcome_of(self, name: str, shares: dict) -> PlanOutcome:
         mixed: MixedSeries = mix_tiles(self.tiles, self.tiles.weights(shares))
+        months = pd.RangeIndex(1, 13, name="month")
+        flow = mixed.flow_m3s
+        threshold = self.plan_file.catchment.low_flow_m3s
+        baseline = None if name == "current" else self.outcome("current").crosscheck_offset_pct
         return PlanOutcome(
             name=name,
             shares={zone: dict(cover_shares) for zone, cover_shares in shares.items()},
             annual=self._annual_table(mixed),
-            monthly_yield_mm=pd.Series(
-                mixed.monthly_yield_mm, index=pd.RangeIndex(1, 13, name="month"), name="yield_mm"
-            ),
-            flow_m3s=pd.Series(mixed.flow_m3s, index=self.tiles.dates, name="flow_m3s"),
-            fdc=flow_duration_curve(mixed.flow_m3s),
+            monthly_yield_mm=pd.Series(mixed.monthly_yield_mm, index=months, name="yield_mm"),
+            flow_m3s=pd.Series(flow, index=self.tiles.dates, name="flow_m3s"),
+            fdc=flow_duration_curve(flow),
             model_evap_mm=mixed.model_evap_mm,
             zhang_evap_mm=mixed.zhang_evap_mm,
             fu_evap_mm=mixed.fu_evap_mm,
             area_km2=self.tiles.area_km2,
+            monthly_land_yield_mm=pd.Series(
+                mixed.monthly_land_yield_mm, index=months, name="land_yield_mm"
+            ),
+            monthly_open_water_mm=pd.Series(
+                mixed.monthly_open_water_mm, index=months, name="open_water_net_mm"
+            ),
+            monthly_flow_m3s=pd.Series(mixed.monthly_flow_m3s, index=months, name="flow_m3s"),
+            q7_m3s=float(np.nanmean(annual_minimum_moving_mean(flow, self._year_code))),
+            baseflow_index=baseflow_index(flow, self._complete),
+            days_below_per_year=(
+                None if threshold is None else days_below_per_year(flow, threshold, self._complete)
+            ),
+            low_flow_m3s=threshold,
+            baseline_offset_pct=baseline,
         )
 
     def _annual_table(self, mixed: MixedSeries) -> pd.DataFrame:
         a = mixed.annual
         evap = a["interception_mm"] + a["transpiration_mm"] + a["soil_evap_mm"] + a["open_water_mm"]
-        yield_mm = a["quickflow_mm"] + a["drainage_mm"]
+        land_yield = a["quickflow_mm"] + a["drainage_mm"]
+        yield_mm = land_yield + a["open_water_net_mm"]
         derived = {
             "evap_mm": evap,
+            "land_yield_mm": land_yield,
             "yield_mm": yield_mm,
             "yield_ml": yield_mm * self.tiles.area_km2,
         }
@@ -297,6 +392,12 @@ class Comparison:
         d_yield = outcome.annual["yield_mm"] - base.annual["yield_mm"]
         d_mean = outcome.mean_yield_mm - base.mean_yield_mm
         d_q95 = outcome.q95_m3s - base.q95_m3s
+        d_q7 = outcome.q7_m3s - base.q7_m3s
+        days = (
+            None
+            if outcome.days_below_per_year is None or base.days_below_per_year is None
+            else outcome.days_below_per_year - base.days_below_per_year
+        )
         return PlanChange(
             yield_mm=d_mean,
             yield_pct=_pct(d_mean, base.mean_yield_mm),
@@ -305,6 +406,10 @@ class Comparison:
             driest_year_mm=float(d_yield.loc[self.driest_year]),
             q95_m3s=d_q95,
             q95_pct=_pct(d_q95, base.q95_m3s),
+            q7_m3s=d_q7,
+            q7_pct=_pct(d_q7, base.q7_m3s),
+            baseflow_index=outcome.baseflow_index - base.baseflow_index,
+            days_below_per_year=days,
         )
 
     # ---- tables over all plans ------------------------------------------------------------
@@ -326,6 +431,8 @@ class Comparison:
                 "yield_mm",
                 "storage_change_mm",
                 "yield_ml",
+                "land_yield_mm",
+                "open_water_net_mm",
                 "interception_mm",
                 "transpiration_mm",
                 "soil_evap_mm",
@@ -334,13 +441,56 @@ class Comparison:
         ]
 
     def monthly_table(self) -> pd.DataFrame:
-        """Mean yield per calendar month per plan [mm month-1], and change against `current`."""
-        table = pd.DataFrame(
-            {name: self.outcome(name).monthly_yield_mm for name in self.plan_names}
-        )
-        for name in self.plan_names[1:]:
-            table[f"{name} change"] = table[name] - table["current"]
-        return table
+        """Per plan and calendar month: mean yield and its parts [mm month-1], mean flow [m3 s-1].
+
+        Returns
+        -------
+        pandas.DataFrame
+            Index ``month`` 1-12; per plan the columns ``NAME yield_mm`` (land yield plus the
+            open-water balance), ``NAME land_yield_mm``, ``NAME open_water_net_mm`` and
+            ``NAME flow_m3s`` (mean routed streamflow), and for every plan but ``current`` the
+            change of its yield, ``NAME change_mm``.
+        """
+        columns = {}
+        base = self.outcome("current").monthly_yield_mm
+        for name in self.plan_names:
+            o = self.outcome(name)
+            columns[f"{name} yield_mm"] = o.monthly_yield_mm
+            columns[f"{name} land_yield_mm"] = o.monthly_land_yield_mm
+            columns[f"{name} open_water_net_mm"] = o.monthly_open_water_mm
+            columns[f"{name} flow_m3s"] = o.monthly_flow_m3s
+            if name != "current":
+                columns[f"{name} change_mm"] = o.monthly_yield_mm - base
+        return pd.DataFrame(columns)
+
+    def low_flow_table(self) -> pd.DataFrame:
+        """Per plan: 7Q, baseflow index, days below the threshold, Q95, and their changes.
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per plan: ``q7_m3s`` (mean annual 7-day minimum flow) [m3 s-1],
+            ``q7_change_pct`` [%], ``baseflow_index`` [-], ``baseflow_index_change`` [-],
+            ``days_below_per_year`` and its change [d yr-1] (empty without ``low_flow_m3s``),
+            ``q95_m3s`` [m3 s-1].
+        """
+        rows = []
+        for name in self.plan_names:
+            o = self.outcome(name)
+            c = None if name == "current" else self.change(o)
+            rows.append(
+                {
+                    "plan": name,
+                    "q7_m3s": o.q7_m3s,
+                    "q7_change_pct": np.nan if c is None else c.q7_pct,
+                    "baseflow_index": o.baseflow_index,
+                    "baseflow_index_change": np.nan if c is None else c.baseflow_index,
+                    "days_below_per_year": o.days_below_per_year,
+                    "days_below_change": None if c is None else c.days_below_per_year,
+                    "q95_m3s": o.q95_m3s,
+                }
+            )
+        return pd.DataFrame(rows)
 
     def fdc_table(self) -> pd.DataFrame:
         """Flow duration curve per plan [m3 s-1] by exceedance [%]."""
@@ -350,7 +500,16 @@ class Comparison:
         return table
 
     def crosscheck_table(self) -> pd.DataFrame:
-        """Mean annual evaporation per plan: daily model vs Zhang (2001) and Fu (1981) [mm yr-1]."""
+        """Mean annual evaporation per plan: daily model vs Zhang (2001) and Fu (1981).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per plan: ``model_evap_mm``, ``zhang_evap_mm``, ``fu_evap_mm`` [mm yr-1],
+            ``offset_pct`` (model vs Zhang) [%], ``offset_change_pct`` (against ``current``)
+            [percentage points], ``flagged`` and ``reason``.
+        """
+        base = self.outcome("current").crosscheck_offset_pct
         rows = []
         for name in self.plan_names:
             o = self.outcome(name)
@@ -360,7 +519,10 @@ class Comparison:
                     "model_evap_mm": o.model_evap_mm,
                     "zhang_evap_mm": o.zhang_evap_mm,
                     "fu_evap_mm": o.fu_evap_mm,
-                    "differs": o.crosscheck_flag,
+                    "offset_pct": o.crosscheck_offset_pct,
+                    "offset_change_pct": o.crosscheck_offset_pct - base,
+                    "flagged": o.crosscheck_flag,
+                    "reason": o.crosscheck_reason,
                 }
             )
         return pd.DataFrame(rows)
@@ -388,12 +550,21 @@ class Comparison:
             entry = {
                 "mean_yield_mm": o.mean_yield_mm,
                 "mean_yield_ml": o.mean_yield_ml,
+                "mean_land_yield_mm": float(o.annual["land_yield_mm"].mean()),
+                "mean_open_water_net_mm": float(o.annual["open_water_net_mm"].mean()),
                 "mean_flow_m3s": o.mean_flow_m3s,
                 "q95_m3s": o.q95_m3s,
+                "q7_m3s": o.q7_m3s,
+                "baseflow_index": o.baseflow_index,
+                "days_below_low_flow_per_year": o.days_below_per_year,
                 "mean_evap_mm": float(o.annual["evap_mm"].mean()),
                 "zhang_evap_mm": o.zhang_evap_mm,
                 "fu_evap_mm": o.fu_evap_mm,
+                "crosscheck_offset_pct": o.crosscheck_offset_pct,
                 "crosscheck_differs": o.crosscheck_flag,
+                "crosscheck_reason": o.crosscheck_reason,
+                "monthly_yield_mm": [float(v) for v in o.monthly_yield_mm],
+                "monthly_flow_m3s": [float(v) for v in o.monthly_flow_m3s],
             }
             if name != "current":
                 c = self.change(o)
@@ -406,6 +577,10 @@ class Comparison:
                         "driest_year_change_mm": c.driest_year_mm,
                         "q95_change_m3s": c.q95_m3s,
                         "q95_change_pct": c.q95_pct,
+                        "q7_change_m3s": c.q7_m3s,
+                        "q7_change_pct": c.q7_pct,
+                        "baseflow_index_change": c.baseflow_index,
+                        "days_below_low_flow_change": c.days_below_per_year,
                     }
                 )
             plans[name] = entry
@@ -418,11 +593,24 @@ class Comparison:
                 "n_years": int(len(self.years)),
             },
             "dry_years": self.dry_years,
-            "crosscheck_tolerance_pct": 100 * CROSSCHECK_TOLERANCE,
+            "yield_definition": YIELD_DEFINITION,
+            "crosscheck": {
+                "curve": ZHANG_CURVE_SENTENCE,
+                "typical_offset_pct": list(CROSSCHECK_TYPICAL_OFFSET_PCT),
+                "change_tolerance_pct": CROSSCHECK_CHANGE_TOLERANCE_PCT,
+            },
+            "low_flows": {
+                "q7": f"mean over the complete years of each year's lowest {LOW_FLOW_WINDOW_DAYS}"
+                "-day mean flow",
+                "baseflow_index": "share of streamflow called baseflow by the Lyne & Hollick "
+                f"(1979) filter, alpha {LYNE_HOLLICK_ALPHA}, {LYNE_HOLLICK_PASSES} passes",
+                "low_flow_m3s": spec.low_flow_m3s,
+            },
             "units": {
                 "mm": "mm per year over the whole catchment",
                 "ml": "ML per year",
                 "m3s": "m3 per second",
+                "days": "days per year",
             },
             "caution": CAUTION,
             "plans": plans,

@@ -14,6 +14,8 @@ References
 .. [4] USDA-SCS (1986). Urban hydrology for small watersheds, TR-55, Table 2-2 (curve numbers).
 .. [5] Dickinson, R. E. (1984). Modeling evapotranspiration for three-dimensional global climate
    models. Canopy storage ~0.2 mm per unit LAI.
+.. [6] Gash, J. H. C., Lloyd, C. R. & Lachaud, G. (1995). Estimating sparse forest rainfall
+   interception with an analytical model. J. Hydrol., 170, 79-86 (canopy cover fraction).
 """
 
 from __future__ import annotations
@@ -22,6 +24,12 @@ from typing import Literal
 
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
+
+from coveryield.physics.canopy import (
+    CAPACITY_PER_LAI_MM,
+    canopy_capacity,
+    canopy_cover_fraction,
+)
 
 BaseName = Literal["forest", "pasture", "crop", "water"]
 SOIL_GROUPS = ("A", "B", "C", "D")
@@ -46,8 +54,13 @@ PARAMETER_INFO: dict[str, tuple[str, str, str]] = {
     "lai": ("m2 m-2", "conifer 3-10, grass 2-4, crops 3-6", "from memory"),
     "canopy_capacity_mm": (
         "mm",
-        "conifer 0.8-2.0, grass 0.5-1, crops ~0.2 per unit LAI",
-        "Calder (1990); Dickinson (1984); from memory",
+        "conifer 0.8-2.0, grass 0.5-1; unset: 0.2 mm per unit LAI",
+        "Calder (1990); Dickinson (1984) for 0.2 mm per unit LAI; ranges from memory",
+    ),
+    "extinction_coefficient": (
+        "-",
+        "0.4-0.6 for most canopies; 0.5 for leaves at random angles",
+        "Beer's law; Campbell & Norman (1998) for 0.5 (from memory)",
     ),
     "rooting_depth_m": (
         "m",
@@ -56,15 +69,22 @@ PARAMETER_INFO: dict[str, tuple[str, str, str]] = {
     ),
     "depletion_fraction": ("-", "conifer 0.70, pasture 0.60, cereals 0.55", "FAO-56 Table 22"),
     "curve_number": ("-", "soil groups A-D, 30-100", "USDA-SCS TR-55 Table 2-2 (from memory)"),
-    "fallow_kc": ("-", "bare soil 0.3-1.1 depending on wetting", "FAO-56 Kc ini (from memory)"),
+    "water_depth_m": (
+        "m",
+        "farm ponds 1-3, small lakes and reservoirs 3-10 (mean depth of the mixed layer)",
+        "common practice, no source; used by the heat storage of open water",
+    ),
 }
 
 
 class KcCalendar(BaseModel):
-    """An FAO-56 four-stage crop-coefficient calendar (single Kc).
+    """An FAO-56 four-stage calendar of the basal crop coefficient Kcb (dual Kc method).
 
-    Kc is constant in the initial and mid-season stages and changes linearly in the development
-    and late stages (FAO-56 eq. 66). Outside the season the crop is absent and the soil is bare.
+    Kcb is constant in the initial and mid-season stages and changes linearly in the development
+    and late stages (FAO-56 eq. 66, applied to Kcb as in chapter 7). Kcb·ETo is the crop's
+    transpiration when the soil surface is dry; evaporation from the wetted soil surface is
+    simulated separately by the engine's surface layer (FAO-56 eqs. 69-77). Outside the season
+    the crop is absent and the soil is bare.
 
     Parameters
     ----------
@@ -73,21 +93,21 @@ class KcCalendar(BaseModel):
         later (the same season of the year).
     stage_days : tuple of 4 int
         Lengths of the initial, development, mid-season and late stages [day].
-    kc_ini, kc_mid, kc_end : float
-        Crop coefficients of the initial stage, mid-season and at harvest [-].
+    kcb_ini, kcb_mid, kcb_end : float
+        Basal crop coefficients of the initial stage, mid-season and at harvest [-].
 
     References
     ----------
-    FAO-56 (Allen et al. 1998), Table 11 (stage lengths), Table 12 (Kc values), eq. 66.
+    FAO-56 (Allen et al. 1998), Table 11 (stage lengths), Table 17 (Kcb values), eq. 66.
     """
 
     model_config = ConfigDict(frozen=True, extra="forbid")
 
     planting_doy_north: int = Field(90, ge=1, le=366)
     stage_days: tuple[int, int, int, int] = (20, 25, 60, 30)
-    kc_ini: float = Field(0.3, ge=0.0, le=1.5)
-    kc_mid: float = Field(1.15, ge=0.0, le=1.5)
-    kc_end: float = Field(0.25, ge=0.0, le=1.5)
+    kcb_ini: float = Field(0.15, ge=0.0, le=1.5)
+    kcb_mid: float = Field(1.10, ge=0.0, le=1.5)
+    kcb_end: float = Field(0.15, ge=0.0, le=1.5)
 
     @field_validator("stage_days")
     @classmethod
@@ -102,7 +122,7 @@ class KcCalendar(BaseModel):
         return int(sum(self.stage_days))
 
     def kc(self, doy, latitude_deg: float | None = None):
-        """Crop coefficient and in-season flag for each day of year.
+        """Basal crop coefficient Kcb and in-season flag for each day of year.
 
         Parameters
         ----------
@@ -114,7 +134,7 @@ class KcCalendar(BaseModel):
         Returns
         -------
         kc : numpy.ndarray
-            Crop coefficient [-], 0 outside the season.
+            Basal crop coefficient Kcb [-], 0 outside the season.
         in_season : numpy.ndarray of bool
             True where the crop is in the field.
         """
@@ -129,10 +149,37 @@ class KcCalendar(BaseModel):
             [0, l_ini, l_ini + l_dev, l_ini + l_dev + l_mid, l_ini + l_dev + l_mid + l_late],
             dtype=float,
         )
-        knots_kc = np.array([self.kc_ini, self.kc_ini, self.kc_mid, self.kc_mid, self.kc_end])
+        knots_kc = np.array(
+            [self.kcb_ini, self.kcb_ini, self.kcb_mid, self.kcb_mid, self.kcb_end]
+        )
         kc = np.interp(day, knots_day, knots_kc)
         in_season = day < self.season_days
         return np.where(in_season, kc, 0.0), in_season
+
+    def development(self, doy, latitude_deg: float | None = None):
+        """Canopy development through the season as a fraction of its mid-season size [-].
+
+        Parameters
+        ----------
+        doy : array_like of int
+            Day of year, 1-366 [day].
+        latitude_deg : float, optional
+            Site latitude [degrees, negative south].
+
+        Returns
+        -------
+        numpy.ndarray
+            (Kcb − Kcb ini) / (Kcb mid − Kcb ini), clipped to 0..1 in season, 0 outside it: 0 at
+            planting, 1 in mid-season, back towards 0 as the crop ripens. Scaling leaf area
+            with Kcb in this way is our choice (FAO-56 eq. 76 ties the crop's ground cover to
+            Kcb in a similar way).
+        """
+        kcb, in_season = self.kc(doy, latitude_deg)
+        span = self.kcb_mid - self.kcb_ini
+        if span <= 0.0:
+            return in_season.astype(float)
+        share = np.clip((kcb - self.kcb_ini) / span, 0.0, 1.0)
+        return np.where(in_season, share, 0.0)
 
 
 class Cover(BaseModel):
@@ -155,9 +202,14 @@ class Cover(BaseModel):
     rs_s_per_m : float
         Bulk surface resistance of the dry, well-watered canopy [s m-1].
     lai : float
-        Leaf area index [m2 m-2].
-    canopy_capacity_mm : float
-        Rain the canopy can hold (interception store) [mm].
+        Leaf area index of the mature, in-season canopy [m2 m-2]. It sizes the canopy store
+        (unless ``canopy_capacity_mm`` is given) and the canopy cover fraction.
+    canopy_capacity_mm : float or None
+        Rain the canopy can hold at its ``lai`` (interception store) [mm]. None (the default):
+        :data:`coveryield.physics.canopy.CAPACITY_PER_LAI_MM` per unit LAI. Either way the store
+        scales with leaf area, see :meth:`capacity_per_lai_mm`.
+    extinction_coefficient : float
+        k of Beer's law, canopy cover fraction = 1 − exp(−k·LAI) [-].
     rooting_depth_m : float
         Effective rooting depth; root-zone capacity = depth x available water capacity [m].
     depletion_fraction : float
@@ -165,9 +217,11 @@ class Cover(BaseModel):
     curve_number : dict
         SCS curve number for average antecedent wetness per hydrologic soil group A-D [-].
     kc_calendar : KcCalendar or None
-        For crops: Kc calendar; transpiration then follows Kc x ET0 (FAO-56 eq. 58) in season.
-    fallow_kc : float
-        Soil-evaporation coefficient of bare soil outside the crop season [-].
+        For crops: basal Kcb calendar; transpiration then follows Kcb x ET0 in season (FAO-56
+        eq. 69 with Ke simulated by the surface layer), and leaf area follows the season.
+    water_depth_m : float
+        For open water: mean depth of the mixed water column, which sets how much heat the
+        water stores [m].
     description : str
         Free text shown to users.
     """
@@ -181,12 +235,13 @@ class Cover(BaseModel):
     height_m: float = Field(ge=0.0, le=120.0)
     rs_s_per_m: float = Field(ge=0.0, le=5000.0)
     lai: float = Field(ge=0.0, le=20.0)
-    canopy_capacity_mm: float = Field(ge=0.0, le=10.0)
+    canopy_capacity_mm: float | None = Field(None, ge=0.0, le=10.0)
+    extinction_coefficient: float = Field(0.5, gt=0.0, le=2.0)
     rooting_depth_m: float = Field(ge=0.0, le=10.0)
     depletion_fraction: float = Field(ge=0.0, le=0.95)
     curve_number: dict[str, float]
     kc_calendar: KcCalendar | None = None
-    fallow_kc: float = Field(0.0, ge=0.0, le=1.3)
+    water_depth_m: float = Field(2.0, gt=0.0, le=500.0)
 
     @field_validator("curve_number")
     @classmethod
@@ -211,6 +266,11 @@ class Cover(BaseModel):
                 raise ValueError(
                     f"a {self.base} cover needs rooting_depth_m > 0, got {self.rooting_depth_m}"
                 )
+            if self.canopy_capacity_mm and self.lai <= 0.0:
+                raise ValueError(
+                    f"canopy_capacity_mm = {self.canopy_capacity_mm} needs lai > 0 (the store "
+                    "scales with leaf area), got lai = 0"
+                )
         if self.base == "crop" and self.kc_calendar is None:
             raise ValueError("a crop cover needs a kc_calendar")
         return self
@@ -219,6 +279,48 @@ class Cover(BaseModel):
     def is_water(self) -> bool:
         """True for open water (no canopy, no soil)."""
         return self.base == "water"
+
+    @property
+    def capacity_per_lai_mm(self) -> float:
+        """Canopy storage per unit leaf area index [mm per m2 m-2].
+
+        A measured ``canopy_capacity_mm`` fixes it at capacity / LAI; otherwise it is
+        :data:`~coveryield.physics.canopy.CAPACITY_PER_LAI_MM` (Dickinson 1984). Whenever the
+        leaf area moves (a crop's season, a plantation's growth) the store moves with it:
+        capacity(LAI) = capacity_per_lai_mm x LAI.
+        """
+        if self.canopy_capacity_mm is not None and self.lai > 0.0:
+            return self.canopy_capacity_mm / self.lai
+        return CAPACITY_PER_LAI_MM
+
+    def canopy_capacity_at(self, lai):
+        """Canopy storage capacity at a leaf area index [mm] (``lai`` in m2 m-2)."""
+        return canopy_capacity(lai, self.capacity_per_lai_mm)
+
+    def cover_fraction_at(self, lai):
+        """Fraction of the ground under canopy at a leaf area index [-] (Beer's law)."""
+        return canopy_cover_fraction(lai, self.extinction_coefficient)
+
+    def leaf_area_index(self, doy, latitude_deg: float | None = None):
+        """Leaf area index of each day [m2 m-2].
+
+        Parameters
+        ----------
+        doy : array_like of int
+            Day of year, 1-366 [day].
+        latitude_deg : float, optional
+            Site latitude [degrees, negative south] (a crop's season depends on it).
+
+        Returns
+        -------
+        numpy.ndarray
+            ``lai`` every day for covers without a calendar (mature, stationary covers); for a
+            crop, ``lai`` scaled by :meth:`KcCalendar.development` (0 outside the season).
+        """
+        doy = np.asarray(doy)
+        if self.kc_calendar is None:
+            return np.full(doy.shape, 0.0 if self.is_water else self.lai)
+        return self.lai * self.kc_calendar.development(doy, latitude_deg)
 
 
 def _builtin_covers() -> dict[str, Cover]:
@@ -232,7 +334,8 @@ def _builtin_covers() -> dict[str, Cover]:
         # (from memory); the upper end, since daily-mean vapour-pressure
         # deficit drives eq. 3 also in hours when stomata are closed
         lai=6.0,  # conifer plantations 3-10 (from memory)
-        canopy_capacity_mm=1.5,  # Sitka spruce ~1-1.5 mm, Douglas fir 1-2.4 mm (from memory)
+        # canopy store 0.2 mm per unit LAI = 1.2 mm (Dickinson 1984); Sitka spruce ~1-1.5 mm
+        # (from memory)
         rooting_depth_m=1.5,  # FAO-56 Table 22, conifer trees 1.0-1.5 m
         depletion_fraction=0.70,  # FAO-56 Table 22, conifer trees
         curve_number={"A": 30, "B": 55, "C": 70, "D": 77},  # TR-55 woods, good (from memory)
@@ -245,7 +348,8 @@ def _builtin_covers() -> dict[str, Cover]:
         height_m=0.15,  # FAO-56 Table 12, rotated grazing 0.15-0.30 m
         rs_s_per_m=70.0,  # FAO-56 reference surface (eq. 5 with LAI = 24 h)
         lai=2.88,  # FAO-56 reference grass LAI = 24 x 0.12
-        canopy_capacity_mm=0.5,  # grass 0.5-1 mm, ~0.2 mm per unit LAI (Dickinson 1984)
+        # canopy store 0.2 mm per unit LAI = 0.58 mm (Dickinson 1984); grass 0.5-1 mm (from
+        # memory)
         rooting_depth_m=0.8,  # FAO-56 Table 22, grazing pasture 0.5-1.5 m
         depletion_fraction=0.60,  # FAO-56 Table 22, grazing pasture
         curve_number={"A": 39, "B": 61, "C": 74, "D": 80},  # TR-55 pasture, good (from memory)
@@ -257,13 +361,13 @@ def _builtin_covers() -> dict[str, Cover]:
         albedo=0.23,  # cereals 0.16-0.26 (Oke 1987)
         height_m=1.0,  # FAO-56 Table 12, spring wheat
         rs_s_per_m=50.0,  # crops 30-50 s/m at full cover (from memory)
-        lai=4.0,  # cereals 4-6 (from memory)
-        canopy_capacity_mm=1.0,  # ~0.2 mm per unit LAI (Dickinson 1984)
+        lai=4.0,  # cereals 4-6 (from memory); follows the Kcb calendar through the season
+        # canopy store 0.2 mm per unit LAI (Dickinson 1984): 0.8 mm in mid-season
         rooting_depth_m=1.2,  # FAO-56 Table 22, spring wheat 1.0-1.5 m
         depletion_fraction=0.55,  # FAO-56 Table 22, spring wheat
         curve_number={"A": 67, "B": 78, "C": 85, "D": 89},  # TR-55 row crops, good (from memory)
-        kc_calendar=KcCalendar(),  # FAO-56 Tables 11-12, spring wheat 20/25/60/30 d, 0.3/1.15/0.25
-        fallow_kc=0.4,  # FAO-56 Kc ini for bare soil with infrequent wetting (from memory)
+        # FAO-56 Table 11 spring wheat 20/25/60/30 d; Table 17 Kcb 0.15/1.10/0.15
+        kc_calendar=KcCalendar(),
     )
     water = Cover(
         name="water",
@@ -273,10 +377,10 @@ def _builtin_covers() -> dict[str, Cover]:
         height_m=0.0,
         rs_s_per_m=0.0,
         lai=0.0,
-        canopy_capacity_mm=0.0,
         rooting_depth_m=0.0,
         depletion_fraction=0.0,
         curve_number={"A": 100, "B": 100, "C": 100, "D": 100},
+        water_depth_m=2.0,  # farm ponds and small reservoirs, mean depth (our choice)
     )
     return {c.name: c for c in (forest, pasture, crop, water)}
 

@@ -6,13 +6,15 @@ Two functions, both returning daily series on the climate record's date index:
   compiled kernel of :mod:`coveryield.physics.fused` for long records and by the equivalent numpy
   chain for short ones (the two agree to 1e-9 mm/d; see ``tests/physics/test_fused.py``).
 * :func:`cover_evaporation` - the three potential rates the engine needs for one cover: the dry
-  canopy, the wet canopy (which drives interception loss) and bare soil.
+  canopy, the wet canopy (which drives interception loss) and the soil surface.
 
 References
 ----------
 .. [1] Allen, R. G., Pereira, L. S., Raes, D., & Smith, M. (1998). Crop evapotranspiration.
    FAO Irrigation and Drainage Paper 56. Eqs. 3, 4, 6, 47 and 58 (ETc = Kc ETo).
 .. [2] Monteith, J. L. (1965). Evaporation and environment. Symp. Soc. Exp. Biol. 19, 205-234.
+.. [3] de Bruin, H. A. R. (1982). J. Hydrol. 59, 261-274; Finch, J. W. (2001). Hydrol.
+   Processes 15, 2771-2778 (open water with heat storage; see coveryield.physics.open_water).
 """
 
 from __future__ import annotations
@@ -24,10 +26,15 @@ from .errors import ClimateFileError
 from .physics.evaporation import (
     aerodynamic_resistance,
     fao56_reference_evaporation,
-    open_water_evaporation,
     penman_monteith,
 )
 from .physics.meteo import atmospheric_pressure, mean_saturation_vapour_pressure
+from .physics.open_water import open_water_evaporation
+from .physics.soil_evaporation import (
+    maximum_crop_coefficient,
+    minimum_relative_humidity,
+    soil_evaporation_energy,
+)
 from .physics.radiation import (
     clear_sky_radiation,
     net_longwave_radiation,
@@ -129,6 +136,39 @@ def _canopy_rates(col, doy, site, cover):
     return dry, wet
 
 
+def _open_water_rate(col, doy, site, cover):
+    """Open-water evaporation with the water body's heat storage [mm d-1]."""
+    evaporation, _, _ = open_water_evaporation(
+        col["tmax_c"],
+        col["tmin_c"],
+        col["ea_kpa"],
+        col["rs_mj"],
+        wind_speed_at_2m(col["wind_ms"], site.wind_height_m),  # FAO-56 eq. 47
+        doy,
+        site.latitude_deg,
+        site.elevation_m,
+        depth_m=cover.water_depth_m,
+        albedo=cover.albedo,
+    )
+    return evaporation
+
+
+def _soil_energy(col, doy, site, cover, et0, dry):
+    """Energy left for soil evaporation, (Kc,max ETo - E_dry)+ (FAO-56 eqs. 71-72) [mm d-1]."""
+    height = cover.height_m
+    if cover.kc_calendar is not None:  # a crop's height follows its season; bare soil: 0
+        height = height * cover.kc_calendar.development(doy, site.latitude_deg)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        kcb = np.where(et0 > 0.0, dry / et0, 0.0)  # the cover's dry rate stands in for Kcb ETo
+    kc_max = maximum_crop_coefficient(
+        wind_speed_at_2m(col["wind_ms"], site.wind_height_m),
+        minimum_relative_humidity(col["ea_kpa"], col["tmax_c"]),
+        height,
+        kcb,
+    )  # FAO-56 eq. 72
+    return soil_evaporation_energy(et0, dry, kc_max)  # FAO-56 eq. 71, Kr = 1
+
+
 def cover_evaporation(climate, cover, et0_mm=None):
     """Daily potential evaporation rates of one cover under a climate record.
 
@@ -138,7 +178,7 @@ def cover_evaporation(climate, cover, et0_mm=None):
         Record as for :func:`reference_et`.
     cover : Cover
         Land cover (``albedo`` [-], ``height_m`` [m], ``rs_s_per_m`` [s m-1], ``is_water``,
-        ``kc_calendar`` and ``fallow_kc`` [-]).
+        ``kc_calendar`` [-], ``water_depth_m`` [m]).
     et0_mm : pandas.Series, optional
         FAO-56 reference evaporation on the same index [mm d-1]; computed when not given
         (pass it to save time when several covers share one record).
@@ -148,70 +188,61 @@ def cover_evaporation(climate, cover, et0_mm=None):
     pandas.DataFrame
         On the record's date index, three potential rates, all in mm d-1:
 
-        ===========  ======  =============================================================
+        ===========  ======  ================================================================
         column       unit    what it is
-        ===========  ======  =============================================================
-        ``dry_mm``   mm d-1  dry-canopy evaporation (transpiration at full supply)
-        ``wet_mm``   mm d-1  evaporation of rain held on a wet canopy (interception loss)
-        ``soil_mm``  mm d-1  bare-soil evaporation at full supply
-        ===========  ======  =============================================================
+        ===========  ======  ================================================================
+        ``dry_mm``   mm d-1  dry-canopy transpiration at full supply, per unit ground area
+        ``wet_mm``   mm d-1  evaporation of a fully wet canopy (rain held on leaves), per
+                             unit canopy-covered area
+        ``soil_mm``  mm d-1  energy left for soil evaporation, per unit ground area
+        ===========  ======  ================================================================
 
         ``dry_mm``: Penman-Monteith (eq. 3) with the cover's albedo, surface resistance and an
         aerodynamic resistance (eq. 4) taken at the cover's reference height with the station
-        wind moved above the canopy; for a cover with a Kc calendar, Kc(doy) ETo in season
-        (eq. 58) and 0 outside it.
+        wind moved above the canopy; for a cover with a Kcb calendar, Kcb(doy) ETo in season
+        and 0 outside it.
 
-        ``wet_mm``: the same with rs = 0, the rate at which intercepted rain evaporates; 0
-        outside a crop's season (no canopy). For a tall, rough canopy it is large: with rs = 0
-        and an aerodynamic resistance of only about 5-20 s m-1 (against 70-200 s m-1 for grass),
-        the vapour-pressure-deficit term of eq. 3 dominates, so on warm, dry, windy days it
-        reaches 12-20 mm d-1, several times the dry-canopy rate. That is expected, not an error
-        (wet forest canopies evaporating several times faster than dry ones is well documented,
-        e.g. Calder 1990; quoted from memory): the rate applies only while the canopy is wet and
-        is limited by the few mm the canopy holds (``canopy_capacity_mm``), so a day's
-        interception loss stays a few mm; it is what makes forest lose 20-40 % of the rain of
-        wet, windy climates to interception (from memory).
+        ``wet_mm``: the same with rs = 0, the rate at which rain held on leaves evaporates.
+        For a tall, rough canopy it is large: with rs = 0 and an aerodynamic resistance of only
+        about 5-20 s m-1 (against 70-200 s m-1 for grass), the vapour-pressure-deficit term of
+        eq. 3, no longer held back by stomata, dominates, so on warm, dry, windy days it reaches
+        12-20 mm d-1, several times the dry-canopy rate. That is expected, not an error (wet
+        forest canopies evaporating several times faster than dry ones is well documented, e.g.
+        Calder 1990; quoted from memory): it applies only while leaves are wet, and the store
+        (``canopy_capacity_mm``, or 0.2 mm per unit LAI) bounds each day's interception loss to
+        a few mm. 0 outside a crop's season (no canopy).
 
-        ``soil_mm``: fallow_kc ETo outside a crop's season, 0 otherwise.
+        ``soil_mm``: (Kc,max·ETo − dry_mm)⁺, FAO-56 eq. 71's (Kc,max − Kcb)·ETo with the dry
+        rate standing in for Kcb·ETo and Kc,max from eq. 72. The engine limits it by the
+        exposed share of the ground and by the drying of the surface layer (eqs. 71-77).
 
-        For open water, dry_mm = wet_mm = open-water evaporation and soil_mm = 0.
+        For open water, dry_mm = wet_mm = open-water evaporation with heat storage
+        (:mod:`coveryield.physics.open_water`) and soil_mm = 0.
         Negative rates (dew) are set to 0 (common practice, no source).
 
     References
     ----------
-    FAO-56 (Allen et al. 1998), eqs. 3, 4, 6 and 58; Monteith (1965). Calder, I. R. (1990),
-    Evaporation in the Uplands, Wiley (wet-canopy evaporation and interception loss of forest;
-    cited from memory).
+    FAO-56 (Allen et al. 1998), eqs. 3, 4, 6, 69-72; Monteith (1965); de Bruin (1982).
+    Calder, I. R. (1990), Evaporation in the Uplands, Wiley (wet-canopy evaporation and
+    interception loss of forest; cited from memory).
     """
     index, col, doy = _daily_inputs(climate)
     site = climate.site
     zeros = np.zeros(len(index))
     if cover.is_water:
-        water = open_water_evaporation(
-            col["tmax_c"],
-            col["tmin_c"],
-            col["ea_kpa"],
-            col["rs_mj"],
-            col["wind_ms"],
-            doy,
-            site.latitude_deg,
-            site.elevation_m,
-            wind_height_m=site.wind_height_m,
-            albedo=cover.albedo,
-        )
+        water = _open_water_rate(col, doy, site, cover)
         dry, wet, soil = water, water, zeros
     else:
+        et0 = np.clip(
+            reference_et(climate).to_numpy() if et0_mm is None else np.asarray(et0_mm, float),
+            0.0,
+            None,
+        )
         dry, wet = _canopy_rates(col, doy, site, cover)
-        soil = zeros
         if cover.kc_calendar is not None:
-            et0 = (
-                reference_et(climate).to_numpy()
-                if et0_mm is None
-                else np.asarray(et0_mm, dtype=float)
-            )
-            kc, in_season = cover.kc_calendar.kc(doy, latitude_deg=site.latitude_deg)
-            dry = np.where(in_season, kc * et0, 0.0)  # FAO-56 eq. 58
+            kcb, in_season = cover.kc_calendar.kc(doy, latitude_deg=site.latitude_deg)
+            dry = np.where(in_season, kcb * et0, 0.0)  # FAO-56 eq. 69, transpiration Kcb ETo
             wet = np.where(in_season, wet, 0.0)
-            soil = np.where(in_season, 0.0, cover.fallow_kc * et0)
+        soil = _soil_energy(col, doy, site, cover, et0, np.maximum(dry, 0.0))
     frame = pd.DataFrame({"dry_mm": dry, "wet_mm": wet, "soil_mm": soil}, index=index)
     return frame.clip(lower=0.0)

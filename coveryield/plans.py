@@ -31,7 +31,12 @@ from pydantic import BaseModel, ConfigDict, Field, ValidationError, ValidationIn
 
 from coveryield.covers import BUILTIN_COVERS, Cover, derive_cover
 from coveryield.errors import OutputError, PlanFileError
-from coveryield.soils import SOIL_TEXTURES, available_water_capacity, normalise_texture
+from coveryield.soils import (
+    SOIL_TEXTURES,
+    available_water_capacity,
+    normalise_texture,
+    surface_layer_mm,
+)
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -77,9 +82,15 @@ class CatchmentSpec(BaseModel):
         Coastal site: Hargreaves radiation coefficient 0.19 instead of 0.16 when the record has
         no radiation or sunshine data (FAO-56 eq. 50).
     recession_days : float
-        Groundwater recession constant used to route drainage to streamflow [day], default 30.
+        Recession constant of the groundwater store that routes drainage (water percolating
+        below the root zone) and the open-water balance to streamflow [day], default 30.
+    quickflow_recession_days : float
+        Recession constant of the fast store that routes quickflow to streamflow [day],
+        default 2.
     rain_rate_mm_per_h : float
         Mean rainfall intensity during rain, used by canopy interception [mm h-1], default 1.5.
+    low_flow_m3s : float or None
+        Flow threshold for "days below" in the low-flow figures [m3 s-1]; optional.
     """
 
     model_config = ConfigDict(frozen=True, extra="forbid", strict=True)
@@ -92,7 +103,9 @@ class CatchmentSpec(BaseModel):
     wind_height_m: float = Field(2.0, ge=0.5, le=100.0)
     coastal: bool = False
     recession_days: float = Field(30.0, gt=0.0, le=3650.0)
+    quickflow_recession_days: float = Field(2.0, gt=0.0, le=365.0)
     rain_rate_mm_per_h: float = Field(1.5, gt=0.0, le=200.0)
+    low_flow_m3s: float | None = Field(None, gt=0.0)
 
     @field_validator("climate", mode="before")
     @classmethod
@@ -152,6 +165,11 @@ class ZoneSpec(BaseModel):
     def awc_m3_per_m3(self) -> float:
         """Available water capacity of the zone's soil, theta_FC - theta_WP [m3 m-3]."""
         return available_water_capacity(self.soil)
+
+    @property
+    def surface_layer_mm(self) -> tuple[float, float]:
+        """Readily and total evaporable water (REW, TEW) of the zone's surface layer [mm]."""
+        return surface_layer_mm(self.soil)
 
 
 class PlanFile(BaseModel):
@@ -278,6 +296,8 @@ class PlanFile(BaseModel):
                  "", "[catchment]"]
         for field in CatchmentSpec.model_fields:
             value = getattr(self.catchment, field)
+            if value is None:  # an optional key left out
+                continue
             if field == "climate":
                 value = _relative_path(value, folder)
             lines.append(f"{field} = {_toml_value(value)}")
@@ -753,6 +773,9 @@ def _plain_words(error: Mapping[str, Any], model: type[BaseModel], loc: list[str
 def _describe(field) -> str:
     """Plain words for what a pydantic field accepts, e.g. 'a number greater than 0'."""
     annotation = field.annotation
+    optional = [a for a in get_args(annotation) if a is not type(None)]
+    if type(None) in get_args(annotation) and len(optional) == 1:  # e.g. float | None
+        annotation = optional[0]
     if get_origin(annotation) is Literal:
         return "one of " + ", ".join(_toml_value(a) for a in get_args(annotation))
     words = {float: "a number", int: "a whole number", bool: "true or false", str: "text",

@@ -19,9 +19,14 @@ from collections.abc import Callable, Iterable
 import numpy as np
 
 from coveryield import palette
-from coveryield.comparison import CAUTION, Comparison, PlanChange, PlanOutcome
+from coveryield.comparison import CAUTION, YIELD_DEFINITION, Comparison, PlanChange, PlanOutcome
 from coveryield.palette import PLAN_STYLES
-from coveryield.physics.curves import CROSSCHECK_TOLERANCE
+from coveryield.physics.curves import (
+    CROSSCHECK_CHANGE_TOLERANCE_PCT,
+    CROSSCHECK_TYPICAL_OFFSET_PCT,
+    ZHANG_CURVE_SENTENCE,
+    crosscheck_offset_pct,
+)
 
 __all__ = ["render_report", "PLAN_STYLES"]
 
@@ -107,16 +112,15 @@ def _swatch(index: int) -> str:
     return f'<span class="swatch" style="background:{_style(index)[0]}"></span>'
 
 
-def _flag_cell(model_mm: float, zhang_mm: float, flagged: bool | None = None) -> str:
-    """Model vs Zhang difference [% of Zhang], marked when beyond the cross-check tolerance."""
-    if not zhang_mm:
+def _offset_cell(offset_pct: float, reason: str = "") -> str:
+    """Model vs Zhang difference [% of Zhang]; marked ⚠ (with the reason as a tooltip) if flagged."""
+    if _missing(offset_pct):
         return _td("n/a")
-    diff_pct = 100.0 * (model_mm - zhang_mm) / zhang_mm
-    if flagged is None:
-        flagged = abs(model_mm - zhang_mm) > CROSSCHECK_TOLERANCE * abs(zhang_mm)
-    if flagged:
-        return _td(f"\u26a0 {_signed(diff_pct)}", "n flag")
-    return _td(_signed(diff_pct))
+    if reason:
+        return (
+            f'<td class="n flag" title="{_esc(reason)}">\u26a0 {_signed(offset_pct)}</td>'
+        )
+    return _td(_signed(offset_pct))
 
 
 # ---- tables --------------------------------------------------------------------------------
@@ -134,7 +138,7 @@ def _headline_table(result: Comparison) -> str:
         "<th>driest 10 % of years<br>mm/yr</th><th>driest year<br>mm/yr</th>"
         "<th>Q95<br>m³/s</th><th>Q95 change<br>m³/s</th><th>Q95 change<br>%</th>"
         "<th>daily model<br>mm/yr</th><th>Zhang curve<br>mm/yr</th>"
-        f"<th>model vs Zhang<br>% (flag beyond ±{100 * CROSSCHECK_TOLERANCE:.0f})</th></tr>"
+        "<th>model vs Zhang<br>% more</th></tr>"
     )
     rows = []
     for i, name in enumerate(result.plan_names):
@@ -163,10 +167,39 @@ def _headline_table(result: Comparison) -> str:
         cells += [
             _td(_num(o.model_evap_mm)),
             _td(_num(o.zhang_evap_mm)),
-            _flag_cell(o.model_evap_mm, o.zhang_evap_mm, o.crosscheck_flag),
+            _offset_cell(o.crosscheck_offset_pct, o.crosscheck_reason),
         ]
         rows.append("<tr>" + "".join(cells) + "</tr>")
     return "<table>" + group + units + "".join(rows) + "</table>"
+
+
+def _low_flow_table(result: Comparison) -> str:
+    threshold = result.plan_file.catchment.low_flow_m3s
+    below = (
+        f"days below {threshold:g} m³/s<br>d/yr" if threshold is not None else "days below<br>d/yr"
+    )
+    head = (
+        "<tr><th>plan</th><th>7Q<br>m³/s</th><th>7Q change<br>%</th><th>baseflow index<br>–</th>"
+        f"<th>BFI change<br>–</th><th>{below}</th><th>change<br>d/yr</th><th>Q95<br>m³/s</th>"
+        "</tr>"
+    )
+    rows = []
+    for i, name in enumerate(result.plan_names):
+        o = result.outcome(name)
+        c = None if name == "current" else result.change(o)
+        days = None if o.days_below_per_year is None else o.days_below_per_year
+        cells = [
+            _td(_swatch(i) + _esc(name), "name"),
+            _td(_num(o.q7_m3s, 3)),
+            _td("" if c is None else _signed(c.q7_pct, 1)),
+            _td(_num(o.baseflow_index, 2)),
+            _td("" if c is None else _signed(c.baseflow_index, 3)),
+            _td(_num(days, 1)),
+            _td("" if c is None else _signed(c.days_below_per_year, 1)),
+            _td(_num(o.q95_m3s, 3)),
+        ]
+        rows.append("<tr>" + "".join(cells) + "</tr>")
+    return "<table>" + head + "".join(rows) + "</table>"
 
 
 def _shares_table(result: Comparison) -> str:
@@ -202,7 +235,7 @@ def _tile_table(result: Comparison) -> str:
     head = (
         "<tr><th>zone</th><th>cover</th><th>rain<br>mm/yr</th><th>reference ET0<br>mm/yr</th>"
         "<th>daily model<br>mm/yr</th><th>Zhang curve<br>mm/yr</th><th>Fu curve<br>mm/yr</th>"
-        "<th>model vs Zhang<br>%</th></tr>"
+        "<th>model vs Zhang<br>% more</th></tr>"
     )
     plans = result.plan_file.plans.values()
     rows = []
@@ -216,7 +249,7 @@ def _tile_table(result: Comparison) -> str:
             _td(_num(r.model_evap_mm)),
             _td(_num(r.zhang_evap_mm)),
             _td(_num(r.fu_evap_mm)),
-            _flag_cell(r.model_evap_mm, r.zhang_evap_mm),
+            _td(_signed(crosscheck_offset_pct(r.model_evap_mm, r.zhang_evap_mm))),
         ]
         rows.append(("<tr>" if used else '<tr class="unused">') + "".join(cells) + "</tr>")
     return "<table>" + head + "".join(rows) + "</table>"
@@ -272,14 +305,30 @@ def _annual_chart(fig, result: Comparison) -> None:
 
 
 def _monthly_chart(fig, result: Comparison) -> None:
-    ax = fig.add_subplot()
+    left, right = fig.subplots(1, 2, gridspec_kw={"width_ratios": (1.25, 1.0)})
     months = np.arange(1, 13)
-    _plot_lines(ax, result, lambda o: (months, o.monthly_yield_mm.to_numpy()))
-    ax.set_xticks(months, _MONTHS)
-    ax.set_xlabel("calendar month")
-    ax.set_ylabel("mean water yield [mm/month]")
-    ax.set_ylim(bottom=0)
-    ax.legend(loc="upper left", bbox_to_anchor=(1.0, 1.0), fontsize=8)
+    _plot_lines(left, result, lambda o: (months, o.monthly_land_yield_mm.to_numpy()))
+    for i, name in enumerate(result.plan_names):
+        left.plot(
+            months,
+            result.outcome(name).monthly_open_water_mm.to_numpy(),
+            color=_style(i)[0],
+            linestyle=":",
+            linewidth=1.0,
+            label="open-water balance" if i == 0 else None,
+        )
+    left.axhline(0.0, color="#222222", linewidth=0.8)
+    left.set_xticks(months, [m[0] for m in _MONTHS])
+    left.set_xlabel("calendar month")
+    left.set_ylabel("mean depth [mm/month]")
+    left.set_title("land yield (solid) and open-water balance (dotted)", fontsize=8.5)
+    _plot_lines(right, result, lambda o: (months, o.monthly_flow_m3s.to_numpy()))
+    right.set_xticks(months, [m[0] for m in _MONTHS])
+    right.set_xlabel("calendar month")
+    right.set_ylabel("mean streamflow [m³/s]")
+    right.set_ylim(bottom=0)
+    right.set_title("routed streamflow", fontsize=8.5)
+    right.legend(loc="upper left", bbox_to_anchor=(1.0, 1.0), fontsize=8)
 
 
 def _fdc_chart(fig, result: Comparison) -> None:
@@ -383,12 +432,21 @@ def _charts(result: Comparison) -> list[tuple[str, str]]:
             "Annual water yield, year by year, per plan. Grey bands: the driest 10 % of years "
             "by catchment rain.",
         ),
-        (_monthly_chart, (9.0, 3.0), "Mean water yield per calendar month, per plan."),
+        (
+            _monthly_chart,
+            (9.0, 3.2),
+            "Left: mean water yield per calendar month. Solid lines: land yield (quickflow plus "
+            "drainage, never negative). Dotted lines: the net balance of open water, rain on "
+            "ponds and lakes minus their evaporation, negative in months when the water loses "
+            "more than it receives. The yield in the tables is their sum. Right: mean "
+            "streamflow per month, routed through the fast and groundwater stores.",
+        ),
         (
             _fdc_chart,
             (9.0, 3.3),
-            "Flow duration curve per plan: daily streamflow (yield routed through the groundwater "
-            "store) against the share of days it is equalled or exceeded; log flow axis.",
+            "Flow duration curve per plan: daily streamflow (quickflow through the fast store, "
+            "drainage and the open-water balance through the groundwater store) against the "
+            "share of days it is equalled or exceeded; log flow axis.",
         ),
         (
             _change_chart,
@@ -414,8 +472,8 @@ def _paragraphs(items: Iterable[str]) -> str:
     return "".join(f"<p>{p}</p>" for p in items)
 
 
-def _method_text(recession_days: float) -> str:
-    """Two paragraphs on how the figures were computed; ``recession_days`` [day]."""
+def _method_text(spec) -> str:
+    """Paragraphs on how the figures were computed; ``spec`` is the plan's catchment."""
     return _paragraphs(
         [
             "Reference evaporation and the meteorology (vapour pressure, net radiation, "
@@ -423,14 +481,21 @@ def _method_text(recession_days: float) -> str:
             "the climate record and adjusted per zone for rain and temperature. Each cover's "
             "evaporation uses the Penman–Monteith equation with that cover's albedo, height, "
             "leaf area and surface resistance, separately for the dry canopy, the wet canopy "
-            "(rain caught on leaves: interception loss) and bare soil; open water has its own "
-            "rate.",
+            "(rain caught on leaves: interception loss, on the share of ground the canopy "
+            "covers) and the soil surface (FAO-56's two-stage surface layer on the exposed "
+            "share). Open water evaporates with the heat its water stores (an equilibrium-"
+            "temperature method after de Bruin 1982 and Finch 2001).",
             "A daily soil-water balance is run once for every tile (one cover in one zone); "
-            "what the soil cannot hold leaves as quickflow or drainage, which together are the "
-            "water yield. A plan's results are the tiles mixed by their area shares, so every "
-            "plan is compared on the same weather. Daily streamflow is the yield routed "
-            f"through a linear groundwater store (recession constant {recession_days:g} days), "
-            "from which the flow duration curve and Q95 are taken.",
+            "what the soil cannot hold leaves as quickflow or drainage. "
+            f"{_esc(YIELD_DEFINITION)} A plan's results are the tiles mixed by their area "
+            "shares, so every plan is compared on the same weather. Daily streamflow routes "
+            "quickflow through a fast linear store (recession "
+            f"constant {spec.quickflow_recession_days:g} days), and drainage and the open-water "
+            f"balance through a groundwater store ({spec.recession_days:g} days); the flow "
+            "duration curve, Q95, "
+            "the 7-day low flow (7Q: the mean over the years of each year's lowest 7-day mean "
+            "flow) and the baseflow index (Lyne &amp; Hollick 1979 filter, alpha 0.925, three "
+            "passes) are taken from it.",
         ]
     )
 
@@ -453,7 +518,8 @@ def render_report(result: Comparison) -> str:
     spec = result.plan_file.catchment
     years = result.years
     name = _esc(spec.name)
-    tol = f"{100 * CROSSCHECK_TOLERANCE:.0f}"
+    low, high = CROSSCHECK_TYPICAL_OFFSET_PCT
+    usual = f"{low:+.0f} to {high:+.0f} %".replace("-", "\u2212")
     caution = f'<div class="caution">Caution: {_esc(CAUTION)}</div>'
     figures = "".join(
         f'<figure role="img" aria-label="{_esc(caption)}">{svg}'
@@ -475,12 +541,23 @@ def render_report(result: Comparison) -> str:
         "<h2>Headline figures</h2>",
         _headline_table(result),
         '<p class="note">Depths are mm per year over the whole catchment (1 mm over 1 km² = '
-        "1 ML). Changes are against <code>current</code>; negative means less water. Driest 10 % "
-        "of years: the mean change over the years with the least catchment rain; driest year: "
-        f"the change in the single year with the least rain ({result.driest_year}). Q95 is the "
-        "flow equalled or exceeded on 95 % of days. The evaporation flag compares the daily "
-        "model with the Zhang et al. (2001) curve for the same cover mix "
-        f"(tolerance ±{tol} %).</p>",
+        f"1 ML). {_esc(YIELD_DEFINITION)} Changes are against <code>current</code>; negative "
+        "means less water. Driest 10 % of years: the mean change over the years with the least "
+        "catchment rain; driest year: the change in the single year with the least rain "
+        f"({result.driest_year}). Q95 is the flow equalled or exceeded on 95 % of days. "
+        "<i>Model vs Zhang</i> is how much more the daily model evaporates than the Zhang "
+        f"curve for the same cover mix. {_esc(ZHANG_CURVE_SENTENCE)} For this model "
+        f"{usual} is usual; \u26a0 marks a plan outside that range or more than "
+        f"{CROSSCHECK_CHANGE_TOLERANCE_PCT:.0f} points away from current's offset (then the "
+        "model and the curve disagree about the plan's change).</p>",
+        "<h2>Low flows</h2>",
+        _low_flow_table(result),
+        '<p class="note">7Q: the mean over the complete years of each year\'s lowest 7-day '
+        "mean flow. Baseflow index: the share of streamflow that the Lyne &amp; Hollick (1979) "
+        "digital filter (alpha 0.925, three passes) calls baseflow. Days below: mean number "
+        "of days a year with flow below the plan file's <code>low_flow_m3s</code>"
+        + ("" if spec.low_flow_m3s is not None else " (not set in this plan file)")
+        + ".</p>",
         "<h2>Cover shares per zone</h2>",
         _shares_table(result),
         '<p class="note">Share of each zone\'s area [%]; bold: different from '
@@ -489,16 +566,17 @@ def render_report(result: Comparison) -> str:
         figures,
         "<h2>Evaporation cross-check per tile</h2>",
         _tile_table(result),
-        f'<p class="note">Mean annual evaporation of each tile (one cover in one zone) from the '
+        '<p class="note">Mean annual evaporation of each tile (one cover in one zone) from the '
         "daily model, set beside two annual curves from rain and potential evaporation: the "
-        "Zhang et al. (2001) curve for forest or grass and Fu's (1981) form of the Budyko curve. "
-        f"A difference from the Zhang curve larger than {tol} % is marked \u26a0: Zhang et al. "
-        "report a mean absolute error of about 6 % over 250 catchments, so a difference beyond "
-        "2.5 times that deserves a second look at the cover's parameters or the climate record. "
-        "It does not by itself make the daily model wrong: the curves know nothing of soils, "
-        "rain timing or interception. Grey rows: tiles simulated but used by no plan.</p>",
+        "Zhang et al. (2001) curve for forest or grass and Fu's (1981) form of the Budyko curve "
+        f"(plain numbers, no flags). {_esc(ZHANG_CURVE_SENTENCE)} The daily model usually lies "
+        f"{usual} above it for forest and pasture (README, Known limits, explains why); a "
+        "difference outside that range deserves a second look at the cover's parameters or the "
+        "climate record, but does not by itself make the daily model wrong: the curves know "
+        "nothing of soils, rain timing or interception. Grey rows: tiles simulated but used by "
+        "no plan.</p>",
         "<h2>How this was computed</h2>",
-        _method_text(spec.recession_days),
+        _method_text(spec),
         caution,
         "</body></html>",
     ]

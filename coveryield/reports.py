@@ -11,14 +11,14 @@ import os
 from collections.abc import Mapping
 from pathlib import Path
 
-from coveryield.comparison import CAUTION, Comparison
+from coveryield.comparison import CAUTION, YIELD_DEFINITION, Comparison
 from coveryield.output_folder import (
     MANIFEST_NAME,
     OutputFolder,
     check_output_folder,
     write_new_folder,
 )
-from coveryield.physics.curves import CROSSCHECK_TOLERANCE
+from coveryield.physics.curves import CROSSCHECK_TYPICAL_OFFSET_PCT, ZHANG_CURVE_SENTENCE
 from coveryield.report_html import render_report
 
 __all__ = ["OUTPUT_FILES", "comparison_table", "write_outputs", "write_new_folder"]
@@ -36,16 +36,75 @@ OUTPUT_FILES = (
 )
 
 
+#: Decimals kept in the output files per unit suffix of a name: flows to 0.1 L/s, depths to
+#: 0.01 mm, volumes to 1 ML, percentages to 0.01 %; smaller values print as zero (common
+#: practice, no source).
+OUTPUT_DECIMALS = {"_m3s": 4, "_mm": 2, "_ml": 0, "_pct": 2, "_index": 4, "_year": 2}
+_DEFAULT_DECIMALS = 6
+
+
+def decimals_for(name: str) -> int:
+    """Decimals an output value named ``name`` is rounded to (by its unit suffix)."""
+    for suffix, decimals in OUTPUT_DECIMALS.items():
+        if name.endswith(suffix) or f"{suffix}_" in name or f"{suffix} " in name:
+            return decimals
+    return _DEFAULT_DECIMALS
+
+
+def rounded(value, decimals: int):
+    """``value`` rounded to ``decimals``, with −0.0 made 0.0 (so 1e-33 and −1e-33 print as 0)."""
+    if isinstance(value, float) and math.isfinite(value):
+        return round(value, decimals) + 0.0
+    return value
+
+
+def rounded_record(record, name: str = ""):
+    """A JSON-ready copy of ``record`` with every float rounded by the unit suffix of its key."""
+    if isinstance(record, dict):
+        return {key: rounded_record(value, str(key)) for key, value in record.items()}
+    if isinstance(record, (list, tuple)):
+        return [rounded_record(value, name) for value in record]
+    if isinstance(record, float):
+        return rounded(record, decimals_for(name))
+    return record
+
+
+def rounded_frame(frame, decimals: int | None = None):
+    """A copy of a table with each float column rounded by the unit suffix of its name.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The table.
+    decimals : int, optional
+        Decimals for every float column instead (e.g. a table of flows named by plan).
+    """
+    out = frame.copy()
+    for column in out.columns:
+        if out[column].dtype.kind == "f":
+            digits = decimals_for(str(column)) if decimals is None else decimals
+            out[column] = out[column].round(digits) + 0.0
+    return out
+
+
 def _signed(value: float, digits: int = 1) -> str:
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return "n/a"
     text = f"{value:+,.{digits}f}"
+    if float(text.replace(",", "")) == 0.0:
+        text = f"{0.0:.{digits}f}"
     return text.replace("-", "\u2212")
 
 
 def dry_years_text(result: Comparison) -> str:
     """Format the dry years, driest first (the order of ``summary.json`` and the dashboard)."""
     return ", ".join(str(y) for y in result.dry_years)
+
+
+def _plain(value: float | None, digits: int) -> str:
+    if value is None or (isinstance(value, float) and math.isnan(value)):
+        return "n/a"
+    return f"{rounded(float(value), digits):,.{digits}f}"
 
 
 def comparison_table(result: Comparison) -> str:
@@ -59,7 +118,8 @@ def comparison_table(result: Comparison) -> str:
     Returns
     -------
     str
-        Several lines of text, units in every header, caution at the end.
+        Two tables (yield, then low flows and the evaporation cross-check), units in every
+        header, notes and the caution at the end.
     """
     spec = result.plan_file.catchment
     years = result.years
@@ -71,43 +131,95 @@ def comparison_table(result: Comparison) -> str:
     ]
     header = (
         f"{'plan':<24}{'yield':>9}{'yield':>10}{'flow':>8}{'change':>9}{'change':>8}"
-        f"{'change':>10}{'dry 10%':>9}{'driest':>9}{'Q95':>8}{'Q95':>8}{'evap':>7}{'Zhang':>7}"
+        f"{'change':>10}{'dry 10%':>9}{'driest':>9}{'Q95':>8}{'Q95':>8}"
     )
     units = (
         f"{'':<24}{'mm/yr':>9}{'ML/yr':>10}{'m3/s':>8}{'mm/yr':>9}{'%':>8}"
-        f"{'ML/yr':>10}{'mm/yr':>9}{'mm/yr':>9}{'m3/s':>8}{'chg %':>8}{'mm/yr':>7}{'mm/yr':>7}"
+        f"{'ML/yr':>10}{'mm/yr':>9}{'mm/yr':>9}{'m3/s':>8}{'chg %':>8}"
     )
     lines += [header, units, "-" * len(header)]
     for name in result.plan_names:
         o = result.outcome(name)
         row = (
             f"{name[:23]:<24}{o.mean_yield_mm:>9.0f}{o.mean_yield_ml:>10,.0f}"
-            f"{o.mean_flow_m3s:>8.3f}"
+            f"{_plain(o.mean_flow_m3s, 3):>8}"
         )
         if name == "current":
-            row += f"{'':>9}{'':>8}{'':>10}{'':>9}{'':>9}{o.q95_m3s:>8.3f}{'':>8}"
+            row += f"{'':>9}{'':>8}{'':>10}{'':>9}{'':>9}{_plain(o.q95_m3s, 3):>8}{'':>8}"
         else:
             c = result.change(o)
             row += (
                 f"{_signed(c.yield_mm):>9}{_signed(c.yield_pct):>8}{_signed(c.yield_ml, 0):>10}"
-                f"{_signed(c.dry10_mm):>9}{_signed(c.driest_year_mm):>9}{o.q95_m3s:>8.3f}"
-                f"{_signed(c.q95_pct, 0):>8}"
+                f"{_signed(c.dry10_mm):>9}{_signed(c.driest_year_mm):>9}"
+                f"{_plain(o.q95_m3s, 3):>8}{_signed(c.q95_pct, 0):>8}"
             )
-        flag = " *" if o.crosscheck_flag else ""
-        row += f"{o.model_evap_mm:>7.0f}{o.zhang_evap_mm:>7.0f}{flag}"
         lines.append(row)
+    lines += [""] + _low_flow_lines(result)
+    lines += [""] + _monthly_lines(result)
+    low, high = CROSSCHECK_TYPICAL_OFFSET_PCT
     lines += [
         "",
         "change: against `current` (negative = less water). dry 10%: mean change over the dry "
         f"years. driest: change in the single driest year ({result.driest_year}). Q95: flow "
         "exceeded on 95 % of days.",
-        "evap vs Zhang: daily model against the Zhang et al. (2001) curve for the same mix; "
-        "* marks a difference above the stated tolerance "
-        f"({100 * CROSSCHECK_TOLERANCE:.0f} %).",
+        f"yield: {YIELD_DEFINITION}",
+        "7Q: mean annual lowest 7-day mean flow. BFI: baseflow index (Lyne & Hollick filter, "
+        "alpha 0.925, 3 passes).",
+        "evap vs Zhang: how much more the daily model evaporates than the Zhang curve for the "
+        f"same cover mix; {low:+.0f} to {high:+.0f} % is usual for this model. * marks a plan "
+        "outside that range or more than 6 points away from current's offset.",
+        ZHANG_CURVE_SENTENCE,
         "",
         f"CAUTION: {CAUTION}",
     ]
     return "\n".join(lines)
+
+
+def _monthly_lines(result: Comparison) -> list[str]:
+    """The third table: mean yield [mm/month] and routed streamflow [m3/s] per calendar month."""
+    months = "JFMAMJJASOND"
+    lines = [
+        f"{'per calendar month':<24}{'':<11}" + "".join(f"{m:>7}" for m in months),
+        "-" * (35 + 7 * 12),
+    ]
+    for name in result.plan_names:
+        o = result.outcome(name)
+        lines.append(f"{name[:23]:<24}{'mm/month':<11}"
+                     + "".join(f"{rounded(float(v), 1):>7.1f}" for v in o.monthly_yield_mm))
+        lines.append(f"{'':<24}{'m3/s':<11}"
+                     + "".join(f"{rounded(float(v), 3):>7.3f}" for v in o.monthly_flow_m3s))
+    return lines
+
+
+def _low_flow_lines(result: Comparison) -> list[str]:
+    """The second table: low flows and the evaporation cross-check per plan."""
+    threshold = result.plan_file.catchment.low_flow_m3s
+    below = f"<{threshold:g}" if threshold is not None else "below"
+    header = (
+        f"{'plan':<24}{'7Q':>8}{'7Q':>8}{'BFI':>7}{'BFI':>8}{below:>9}{'days':>7}"
+        f"{'evap':>8}{'Zhang':>8}{'vs Zhang':>10}"
+    )
+    units = (
+        f"{'':<24}{'m3/s':>8}{'chg %':>8}{'-':>7}{'chg':>8}{'d/yr':>9}{'chg':>7}"
+        f"{'mm/yr':>8}{'mm/yr':>8}{'%':>10}"
+    )
+    lines = [header, units, "-" * len(header)]
+    for name in result.plan_names:
+        o = result.outcome(name)
+        c = None if name == "current" else result.change(o)
+        days = "n/a" if o.days_below_per_year is None else f"{o.days_below_per_year:.1f}"
+        flag = " *" if o.crosscheck_flag else ""
+        lines.append(
+            f"{name[:23]:<24}{_plain(o.q7_m3s, 3):>8}"
+            f"{'' if c is None else _signed(c.q7_pct, 0):>8}{o.baseflow_index:>7.2f}"
+            f"{'' if c is None else _signed(c.baseflow_index, 2):>8}{days:>9}"
+            f"{'' if c is None or c.days_below_per_year is None else _signed(c.days_below_per_year):>7}"
+            f"{o.model_evap_mm:>8.0f}{o.zhang_evap_mm:>8.0f}"
+            f"{_signed(o.crosscheck_offset_pct, 0):>10}{flag}"
+        )
+    if threshold is None:
+        lines.append("(days below: set low_flow_m3s in [catchment] to count days below a flow)")
+    return lines
 
 
 def _readme_text(result: Comparison) -> str:
@@ -118,13 +230,18 @@ def _readme_text(result: Comparison) -> str:
             "",
             "annual.csv        per plan and year; mm over the whole catchment, yield_ml in ML",
             "summary.json      mean annual yield (mm, ML/yr, m3/s) and changes against `current`",
-            "monthly.csv       mean yield per calendar month, mm/month, and change",
+            "monthly.csv       per calendar month: yield, land yield and open-water balance"
+            " (mm/month), mean streamflow (m3/s)",
             "flow_duration.csv streamflow (m3/s) exceeded on a given % of days, per plan",
-            "crosscheck.csv    mean annual evaporation: daily model vs Zhang (2001) and Fu (1981)",
+            "crosscheck.csv    mean annual evaporation: daily model vs Zhang (2001) and Fu (1981),"
+            " offset %",
             "tiles.csv         the same per zone and cover (tile), with mean rain and ET0",
             "report.html       one-page report with charts (self-contained; open in a browser)",
             f"{MANIFEST_NAME}  what coveryield wrote here, with checksums; --force replaces",
             "                  only these files, and only while unchanged",
+            "",
+            YIELD_DEFINITION,
+            "Values are rounded to their unit's precision (flows 0.0001 m3/s, depths 0.01 mm).",
             "",
             f"CAUTION: {CAUTION}",
             "",
@@ -133,12 +250,14 @@ def _readme_text(result: Comparison) -> str:
 
 
 def _write_all(result: Comparison, folder: Path) -> None:
-    result.annual_table().to_csv(folder / "annual.csv", index=False, float_format="%.3f")
-    (folder / "summary.json").write_text(json.dumps(result.summary(), indent=2) + "\n")
-    result.monthly_table().to_csv(folder / "monthly.csv", float_format="%.3f")
-    result.fdc_table().to_csv(folder / "flow_duration.csv", index=False, float_format="%.5f")
-    result.crosscheck_table().to_csv(folder / "crosscheck.csv", index=False, float_format="%.2f")
-    result.cover_crosscheck_table().to_csv(folder / "tiles.csv", index=False, float_format="%.2f")
+    rounded_frame(result.annual_table()).to_csv(folder / "annual.csv", index=False)
+    summary = rounded_record(result.summary())
+    (folder / "summary.json").write_text(json.dumps(summary, indent=2) + "\n")
+    rounded_frame(result.monthly_table()).to_csv(folder / "monthly.csv")
+    flows = rounded_frame(result.fdc_table(), decimals=OUTPUT_DECIMALS["_m3s"])
+    flows.to_csv(folder / "flow_duration.csv", index=False)
+    rounded_frame(result.crosscheck_table()).to_csv(folder / "crosscheck.csv", index=False)
+    rounded_frame(result.cover_crosscheck_table()).to_csv(folder / "tiles.csv", index=False)
     (folder / "README.txt").write_text(_readme_text(result))
     (folder / "report.html").write_text(render_report(result), encoding="utf-8")
 

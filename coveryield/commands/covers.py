@@ -13,8 +13,9 @@ SHOWN = (
     "canopy_capacity_mm",
     "rooting_depth_m",
     "depletion_fraction",
+    "extinction_coefficient",
     "curve_number",
-    "fallow_kc",
+    "water_depth_m",
 )
 
 
@@ -36,6 +37,8 @@ def _value(cover, name: str) -> str:
     value = getattr(cover, name)
     if name == "curve_number":
         return " ".join(f"{group}{cn:g}" for group, cn in value.items())
+    if name == "canopy_capacity_mm" and value is None:  # sized from the leaf area
+        return f"{cover.canopy_capacity_at(cover.lai):.2g} (LAI)"
     return f"{value:g}"
 
 
@@ -45,26 +48,28 @@ def cover_lines(covers: dict) -> list[str]:
 
     names = list(covers)
     width = max(12, *(len(n) + 2 for n in names))
-    lines = [f"{'parameter':<20}{'unit':<8}" + "".join(f"{n:>{width}}" for n in names)]
+    lines = [f"{'parameter':<24}{'unit':<8}" + "".join(f"{n:>{width}}" for n in names)]
     lines.append(
-        f"{'(derives from)':<20}{'':<8}" + "".join(f"{covers[n].base:>{width}}" for n in names)
+        f"{'(derives from)':<24}{'':<8}" + "".join(f"{covers[n].base:>{width}}" for n in names)
     )
     for name in SHOWN:
         unit = PARAMETER_INFO[name][0]
         cells = "".join(f"{_value(covers[n], name):>{width}}" for n in names)
         if name == "curve_number":  # four groups do not fit a column: own lines
-            lines.append(f"{name:<20}{unit:<8}(hydrologic soil groups A-D)")
+            lines.append(f"{name:<24}{unit:<8}(hydrologic soil groups A-D)")
             lines += [f"{'':<4}{n:<24}{_value(covers[n], name)}" for n in names]
             continue
-        lines.append(f"{name:<20}{unit:<8}{cells}")
+        lines.append(f"{name:<24}{unit:<8}{cells}")
     crops = [n for n in names if covers[n].kc_calendar is not None]
     for n in crops:
         cal = covers[n].kc_calendar
         lines.append(
-            f"{n}: Kc calendar planting day {cal.planting_doy_north} (north; +182 south), "
-            f"stages {'/'.join(map(str, cal.stage_days))} d, Kc "
-            f"{cal.kc_ini:g}/{cal.kc_mid:g}/{cal.kc_end:g}"
+            f"{n}: Kcb calendar planting day {cal.planting_doy_north} (north; +182 south), "
+            f"stages {'/'.join(map(str, cal.stage_days))} d, basal Kcb "
+            f"{cal.kcb_ini:g}/{cal.kcb_mid:g}/{cal.kcb_end:g} (FAO-56 Tables 11 and 17)"
         )
+    lines.append("(LAI): canopy store sized from the leaf area, 0.2 mm per unit LAI "
+                 "(Dickinson 1984); water_depth_m applies to open water only.")
     lines.append("")
     lines.append("Typical ranges and sources:")
     for name in SHOWN:

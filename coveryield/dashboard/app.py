@@ -16,6 +16,7 @@ from typing import Any
 import ipywidgets as widgets
 
 from coveryield.dashboard import palette
+from coveryield.comparison import YIELD_DEFINITION
 from coveryield.dashboard.cards import Headline
 from coveryield.dashboard.charts import Charts
 from coveryield.dashboard.exports import CAUTION
@@ -130,10 +131,10 @@ class Dashboard(widgets.VBox):
     @staticmethod
     def _footer() -> widgets.HTML:
         return widgets.HTML(
-            f'<div style="color:{palette.MUTED};font-size:12px;margin-top:6px">Yield: quickflow '
-            "plus drainage leaving the land, as depth over the whole catchment (mm) or volume "
-            "(ML; 1 ML = 1000 m\u00b3). Evaporation check: Zhang et al. (2001) curve and Fu's "
-            f"form of the Budyko framework. {html.escape(CAUTION)}</div>"
+            f'<div style="color:{palette.MUTED};font-size:12px;margin-top:6px">'
+            f"{html.escape(YIELD_DEFINITION)} Depths are over the whole catchment (mm) or "
+            "volumes (ML; 1 ML = 1000 m\u00b3). Evaporation check: Zhang et al. (2001) curve and "
+            f"Fu's form of the Budyko framework. {html.escape(CAUTION)}</div>"
         )
 
 

@@ -17,6 +17,7 @@ import ipywidgets as widgets
 
 from coveryield.dashboard import palette
 from coveryield.dashboard.state import DashboardState
+from coveryield.physics.curves import ZHANG_CURVE_SENTENCE
 from coveryield.dashboard.views import Guard, signed
 
 SMALL = f'style="font-size:12px;color:{palette.MUTED}"'
@@ -140,12 +141,41 @@ class EvaporationCard(Card):
             f'<span style="font-size:15px">daily model <b>{edited.model_evap_mm:,.0f}</b> mm/yr'
             f" \u00b7 Zhang curve <b>{edited.zhang_evap_mm:,.0f}</b> mm/yr</span>",
             f"<span {SMALL}>Fu's form {edited.fu_evap_mm:,.0f} mm/yr; mean annual evaporation "
-            f"of this cover mix</span>{flag}",
+            f"of this cover mix. {html.escape(ZHANG_CURVE_SENTENCE)}</span>{flag}",
+        )
+
+
+class LowFlowCard(Card):
+    """Low flows of the plan on screen: 7Q and its change, baseflow index, days below."""
+
+    key = "low-flows"
+    title = "Low flows"
+
+    def __init__(self, state: DashboardState) -> None:
+        super().__init__(state)
+        self.main.add_class("cy-low-flows")
+
+    def figures(self) -> tuple[str, str]:  # noqa: D102
+        edited, base, change = self.state.outcome, self.state.baseline, self.state.change
+        days = ""
+        if edited.days_below_per_year is not None:
+            days = (f" \u00b7 {edited.days_below_per_year:,.0f} d/yr below "
+                    f"{edited.low_flow_m3s:g} m\u00b3/s")
+        detail = (
+            f"current 7Q {base.q7_m3s:,.3f} m\u00b3/s; baseflow index "
+            f"{edited.baseflow_index:.2f} (current {base.baseflow_index:.2f}){days}. "
+            "7Q: mean of each year's lowest 7-day mean flow."
+        )
+        return (
+            self.big(f"7Q {edited.q7_m3s:,.3f} m\u00b3/s")
+            + f" <span {SMALL}>({signed(change.q7_pct, '%')} against current)</span>",
+            f"<span {SMALL}>{html.escape(detail)}</span>",
         )
 
 
 #: The cards of the page, top to bottom.
-CARDS: tuple[type[Card], ...] = (YieldCard, ChangeCard, DryYearsCard, EvaporationCard)
+CARDS: tuple[type[Card], ...] = (YieldCard, ChangeCard, DryYearsCard, EvaporationCard,
+                                  LowFlowCard)
 
 
 class Headline:

@@ -24,6 +24,7 @@ import bqplot
 import ipywidgets as widgets
 import numpy as np
 
+from coveryield.comparison import YIELD_DEFINITION
 from coveryield.dashboard import palette
 from coveryield.dashboard.state import DashboardState
 from coveryield.dashboard.views import Guard
@@ -76,6 +77,8 @@ class Chart:
     #: Short name: CSS class ``cy-chart-<key>`` on the chart, key in ``Charts.charts``.
     key = "chart"
     title = ""
+    #: A sentence under the legend (plain text), if the chart needs one.
+    note = ""
 
     def __init__(self, state: DashboardState) -> None:
         self.state = state
@@ -91,8 +94,14 @@ class Chart:
             layout=widgets.Layout(width="100%", height="330px"),
             title_style={"font-size": "15px"},
         )
-        self.widget.children = [self.figure, self.legend]
+        self.widget.children = [self.figure, self.legend] + ([self.note_widget()] if self.note else [])
         self.widget.add_class(f"cy-chart-{self.key}")
+
+    def note_widget(self) -> widgets.HTML:
+        """The chart's note under its legend (CSS class ``cy-note-<key>``)."""
+        return widgets.HTML(
+            f'<div class="cy-note-{self.key}" style="color:{palette.MUTED};font-size:12px;'
+            f'line-height:1.35">{html.escape(self.note)}</div>')
 
     @property
     def marks(self) -> list:
@@ -179,6 +188,9 @@ class MonthlyChart(Chart):
 
     key = "monthly"
     title = "Mean monthly yield"
+    note = ("Monthly yield includes the open-water balance (rain on ponds and lakes minus their "
+            "evaporation), so a month can be negative when the water loses more than the land "
+            "yields.")
 
     def __init__(self, state: DashboardState) -> None:
         super().__init__(state)
@@ -270,8 +282,37 @@ class MakeupChart(Chart):
             self.bars.y = np.asarray(columns, dtype=float).T
 
 
+class MonthlyFlowChart(Chart):
+    """Mean routed streamflow at the outlet per calendar month."""
+
+    key = "monthly-flow"
+    title = "Mean monthly streamflow"
+    note = (f"{YIELD_DEFINITION} Streamflow routes quickflow through a fast store, drainage and "
+            "the open-water balance through the groundwater store.")
+
+    def __init__(self, state: DashboardState) -> None:
+        super().__init__(state)
+        sx, sy = bqplot.OrdinalScale(), bqplot.LinearScale(min=0.0)
+        self.edited, self.current = _plan_lines(list(MONTHS), {"x": sx, "y": sy},
+                                                marker="circle", marker_size=18)
+        self.set_figure([self.edited, self.current], [
+            bqplot.Axis(scale=sx, label="Month"),
+            bqplot.Axis(scale=sy, orientation="vertical", label="Streamflow (m\u00b3/s)",
+                        tick_format=".2f", label_offset="50px"),
+        ])
+        self.figure.add_class("cy-monthly-flow")
+
+    def draw(self) -> None:  # noqa: D102
+        with self.edited.hold_sync():
+            self.edited.y = self.state.outcome.monthly_flow_m3s.to_numpy(float)
+            self.edited.colors = [self.state.edited_colour]
+        with self.current.hold_sync():
+            self.current.y = self.state.baseline.monthly_flow_m3s.to_numpy(float)
+
+
 #: The charts of the page, in reading order (two per row).
-CHARTS: tuple[type[Chart], ...] = (AnnualChart, MonthlyChart, FlowDurationChart, MakeupChart)
+CHARTS: tuple[type[Chart], ...] = (AnnualChart, MonthlyChart, FlowDurationChart, MakeupChart,
+                                   MonthlyFlowChart)
 
 
 class Charts:

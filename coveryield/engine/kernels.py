@@ -19,7 +19,8 @@ zero-division checks; the caller guarantees that the divisors are positive.
 Speed
 -----
 At thousands of tiles the loop is bound by memory traffic as much as by arithmetic: every day
-it reads the four forcing rows, writes the yield row and re-reads the parameters and state of
+it reads the forcing rows (the leaf-area and cover rows only when they vary by day, see
+``lai_step``), writes the yield row and re-reads the parameters and state of
 every tile, which together barely fit the L2 cache. Hence the lean rows: an open-water tile is
 marked by a negative canopy capacity instead of a flag row; interception and open-water
 evaporation (never both non-zero on one tile) share one running sum; and an invalid input day
@@ -35,18 +36,26 @@ rain minus open-water evaporation and may be negative. With it the balance is a 
 
     rain = interception + transpiration + soil_evap + open_water + quickflow + drainage
            + Δ(canopy store + soil store)
+
+The surface layer (FAO-56 chapter 7) is the top of the root zone: its depletion is tracked to
+set the soil-evaporation rate, while its water is counted in the soil store, so it adds no term.
 """
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 from numba import njit
+
+from coveryield.physics.fused import _exp_poly
+
 
 #: Tiles per block of the blocked parameter and state arrays.
 BLOCK = 32
 
 # Rows of the blocked parameter array.
-P_CAPACITY = 0  # canopy storage capacity [mm]; WATER_CAPACITY marks an open-water tile
+P_CAPACITY = 0  # canopy storage per unit LAI [mm]; WATER_CAPACITY marks an open-water tile
 P_INV_RAIN_RATE = 1  # 1 / rainfall intensity [h mm⁻¹]
 P_RETENTION_DRY = 2  # SCS retention S for AMC I [mm]
 P_RETENTION_AVERAGE = 3  # SCS retention S for AMC II [mm]
@@ -54,21 +63,24 @@ P_RETENTION_WET = 4  # SCS retention S for AMC III [mm]
 P_TAW = 5  # total available water [mm]
 P_INV_TAW = 6  # 1 / TAW [mm⁻¹]
 P_INV_READILY_SPAN = 7  # 1 / ((1 − p)·TAW) [mm⁻¹]
-N_PAR = 8
+P_TEW = 8  # total evaporable water of the surface layer [mm]
+P_INV_STAGE2_SPAN = 9  # 1 / (TEW − REW) [mm⁻¹]
+N_PAR = 10
 
 #: Canopy capacity that marks an open-water tile (any negative value does) [mm].
 WATER_CAPACITY = -1.0
 
 # Rows of the blocked state array: the stores, then the running sums of the current year [mm].
-S_CANOPY = 0  # canopy store [mm]
+S_CANOPY = 0  # canopy store per unit ground area [mm]
 S_SOIL = 1  # root-zone store above wilting point [mm]
-S_RAIN = 2  # rain; NaN once a day of the year had an invalid input
-S_WET_SURFACE = 3  # interception (land tile) or open-water evaporation (water tile)
-S_TRANSPIRATION = 4
-S_SOIL_EVAP = 5
-S_QUICKFLOW = 6
-S_DRAINAGE = 7
-N_STATE = 8
+S_SURFACE = 2  # depletion of the surface layer's exposed share (FAO-56 De) [mm]
+S_RAIN = 3  # rain; NaN once a day of the year had an invalid input
+S_WET_SURFACE = 4  # interception (land tile) or open-water evaporation (water tile)
+S_TRANSPIRATION = 5
+S_SOIL_EVAP = 6
+S_QUICKFLOW = 7
+S_DRAINAGE = 8
+N_STATE = 9
 
 #: Rows of the annual output ``annual[row, year, tile]`` [mm].
 ANNUAL_NAMES = (
@@ -102,12 +114,16 @@ DAILY_NAMES = (
     "drainage_mm",
     "canopy_store_mm",
     "soil_store_mm",
+    "surface_depletion_mm",
 )
-N_DAILY = 9
+N_DAILY = 10
 
 _HOURS_PER_DAY = 24.0
 _PER_HOUR = 1.0 / 24.0
 _TINY = 1e-300
+#: Smallest exposed share used as a divisor (a closed canopy exposes none, and then evaporates
+#: nothing from the soil, so the quotient is 0) [-].
+_MIN_EXPOSED = 1e-9
 
 
 def pack_blocks(rows):
@@ -209,13 +225,175 @@ def canopy_day(rain_mm, wet_mm, capacity_mm, inv_rain_rate_h_per_mm, store_mm):
     rainfall interception in forests, 1. Agric. Meteorol., 9, 367–384.
     """
     hours = min(_HOURS_PER_DAY, rain_mm * inv_rain_rate_h_per_mm)  # D = min(24, P/R)
-    rate = wet_mm * _PER_HOUR  # e = E_wet / 24 [mm h⁻¹]
-    unclipped = store_mm + rain_mm - rate * hours  # x = S0 + P − e·D
-    evap_storm = min(rate * hours, store_mm + rain_mm)
+    return _canopy_storm(rain_mm, hours, wet_mm * _PER_HOUR, capacity_mm, store_mm)
+
+
+@njit(cache=True, error_model="numpy", inline="always")
+def _canopy_storm(rain_mm, hours, rate_mm_per_h, capacity_mm, store_mm):
+    """The closed form of :func:`canopy_day` for a storm of ``hours`` and a loss ``rate``."""
+    unclipped = store_mm + rain_mm - rate_mm_per_h * hours  # x = S0 + P − e·D
+    evap_storm = min(rate_mm_per_h * hours, store_mm + rain_mm)
     throughfall = max(unclipped - capacity_mm, 0.0)
     store_after_rain = min(max(unclipped, 0.0), capacity_mm)
-    evap_after = min(store_after_rain, rate * (_HOURS_PER_DAY - hours))
+    evap_after = min(store_after_rain, rate_mm_per_h * (_HOURS_PER_DAY - hours))
     return evap_storm + evap_after, throughfall, store_after_rain - evap_after
+
+
+#: Exponents below this are taken by math.exp rather than the polynomial (its range ends at −16).
+_POLY_EXP_MIN = -16.0
+
+
+@njit(cache=True, error_model="numpy")
+def cover_fraction_rows(lai, extinction, out):
+    """Canopy cover fraction c = 1 − exp(−k·LAI) (Beer's law) of every day and tile.
+
+    Parameters
+    ----------
+    lai : ndarray, shape (n_rows, n_tiles)
+        Leaf area index, ≥ 0 [m² m⁻²].
+    extinction : ndarray, shape (n_tiles,)
+        Extinction coefficient k of each tile, > 0 [-].
+    out : ndarray, shape (n_rows, n_tiles)
+        Filled with c [-].
+
+    Notes
+    -----
+    exp comes from the branch-free polynomial :func:`coveryield.physics.fused._exp_poly`
+    (relative error about 1e-14), so the loop vectorises; the rare k·LAI beyond 16 is redone
+    with math.exp. Computed once per run, outside the day loop.
+
+    References
+    ----------
+    Campbell & Norman (1998), ch. 15 (Beer's law for canopies; from memory).
+    """
+    n_rows, n_tiles = lai.shape
+    outside = 0
+    for d in range(n_rows):
+        for t in range(n_tiles):
+            x = -extinction[t] * lai[d, t]
+            outside += x < _POLY_EXP_MIN
+            out[d, t] = 1.0 - _exp_poly(max(x, _POLY_EXP_MIN))
+    if outside:
+        for d in range(n_rows):
+            for t in range(n_tiles):
+                x = -extinction[t] * lai[d, t]
+                if x < _POLY_EXP_MIN:
+                    out[d, t] = 1.0 - math.exp(x)
+
+
+@njit(cache=True, error_model="numpy", inline="always")
+def sparse_canopy_day(rain_mm, wet_mm, cover, capacity_mm, inv_rain_rate_h_per_mm, store_mm):
+    """Intercept one day's rain on a canopy that covers a share ``cover`` of the ground.
+
+    Parameters
+    ----------
+    rain_mm : float
+        Gross rain of the day [mm d⁻¹].
+    wet_mm : float
+        Evaporation of the wet canopy per unit canopy-covered area [mm d⁻¹].
+    cover : float
+        Canopy cover fraction c, 0..1 [-].
+    capacity_mm : float
+        Canopy storage capacity per unit ground area, S [mm].
+    inv_rain_rate_h_per_mm : float
+        1 / mean rainfall intensity while it rains [h mm⁻¹].
+    store_mm : float
+        Water on the canopy per unit ground area at the start of the day [mm].
+
+    Returns
+    -------
+    evaporation_mm, throughfall_mm, store_mm : float
+        Interception loss, rain reaching the ground and the canopy store at the end of the day,
+        all per unit ground area [mm d⁻¹, mm].
+
+    Notes
+    -----
+    The sparse-canopy form of Gash, Lloyd & Lachaud (1995): rain on the open share 1 − c falls
+    straight through; the covered share holds Sc = S/c per unit of its own area and evaporates
+    at the wet-canopy rate there, by :func:`canopy_day`. Ground-area values are c times the
+    covered-area ones, so the storm is computed per unit ground area directly: rain c·P and
+    loss rate c·E_wet on a store of capacity S, the storm lasting as long as the gross rain
+    (D = min(24, P/R)). A canopy losing leaves (S or c falling) drips what it can no longer
+    hold.
+
+    References
+    ----------
+    Gash, J. H. C., Lloyd, C. R. & Lachaud, G. (1995). Estimating sparse forest rainfall
+    interception with an analytical model. J. Hydrol., 170, 79-86.
+    """
+    hours = min(_HOURS_PER_DAY, rain_mm * inv_rain_rate_h_per_mm)  # D = min(24, P/R)
+    on_canopy = cover * rain_mm
+    loss, drip, store_end = _canopy_storm(
+        on_canopy, hours, cover * wet_mm * _PER_HOUR, capacity_mm, store_mm
+    )
+    return loss, rain_mm - on_canopy + drip, store_end
+
+
+@njit(cache=True, error_model="numpy", inline="always")
+def surface_layer_evaporation(
+    infiltration_mm,
+    energy_mm,
+    kc_max_et0_mm,
+    exposed,
+    tew_mm,
+    inv_stage2_span,
+    depletion_mm,
+    root_zone_water_mm,
+):
+    """Soil evaporation of one day from the surface layer (FAO-56 dual coefficient, chapter 7).
+
+    Parameters
+    ----------
+    infiltration_mm : float
+        Water entering the soil today, P − RO (throughfall − quickflow) [mm d⁻¹].
+    energy_mm : float
+        Energy left for soil evaporation once the canopy has evaporated, in the role of
+        (Kc,max − Kcb)·ETo [mm d⁻¹].
+    kc_max_et0_mm : float
+        Kc,max·ETo, the most a wetted surface evaporates [mm d⁻¹].
+    exposed : float
+        Exposed and wetted share of the ground, few = 1 − c [-].
+    tew_mm : float
+        Total evaporable water of the surface layer, TEW [mm].
+    inv_stage2_span : float
+        1 / (TEW − REW) [mm⁻¹].
+    depletion_mm : float
+        Depletion of the surface layer at the end of the previous day, De,i−1 [mm].
+    root_zone_water_mm : float
+        Water the root zone can still give today, after infiltration and transpiration [mm].
+
+    Returns
+    -------
+    evaporation_mm : float
+        Soil evaporation per unit ground area [mm d⁻¹].
+    depletion_mm : float
+        Depletion of the surface layer at the end of the day, De,i, 0..TEW [mm].
+
+    Notes
+    -----
+    Today's infiltration first rewets the layer (eq. 77; what exceeds De drains on, eq. 79: rain
+    is taken to fall before the day's evaporation, common practice, no source). The layer can
+    hold no more water than the root zone it belongs to: De ≥ TEW − root-zone water. Then
+    Kr = (TEW − De)/(TEW − REW), capped at 1 while De ≤ REW (eq. 74), and::
+
+        E = min(Kr·energy, few·Kc,max·ETo, few·(TEW − De), root-zone water)
+
+    (eq. 71 and De ≤ TEW); the exposed share carries it, De += E/few (eq. 77, with the
+    transpiration from the layer, Te, taken as 0).
+
+    References
+    ----------
+    Allen, R. G., Pereira, L. S., Raes, D. & Smith, M. (1998). FAO Irrigation and Drainage
+    Paper 56, eqs. 71, 74, 77 and 79.
+    """
+    # FAO-56 eqs. 77, 79: rain rewets first; the layer holds no more than the root zone
+    depletion = max(depletion_mm - infiltration_mm, max(tew_mm - root_zone_water_mm, 0.0))
+    left = tew_mm - depletion  # evaporable water left in the layer, 0..TEW
+    kr = min(left * inv_stage2_span, 1.0)  # FAO-56 eq. 74
+    exposed_cap = exposed * kc_max_et0_mm  # few·Kc,max·ETo, eq. 71
+    evaporation = min(min(kr * energy_mm, exposed_cap), min(exposed * left, root_zone_water_mm))
+    evaporation = max(evaporation, 0.0)  # rounding can leave `left` a hair below 0
+    return evaporation, depletion + evaporation / max(exposed, _MIN_EXPOSED)  # FAO-56 eq. 77
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -282,7 +460,9 @@ def tile_day(
     wet,
     dry,
     soil_pot,
-    capacity,
+    lai,
+    cover,
+    capacity_per_lai,
     inv_rain_rate,
     retention_dry,
     retention_average,
@@ -290,9 +470,12 @@ def tile_day(
     taw,
     inv_taw,
     inv_readily_span,
+    tew,
+    inv_stage2_span,
     water,
     canopy_store,
     soil_store,
+    surface_depletion,
 ):
     """Water balance of one tile over one day.
 
@@ -301,13 +484,18 @@ def tile_day(
     rain : float
         Gross rain [mm d⁻¹].
     wet : float
-        Wet-canopy (or open-water) potential evaporation [mm d⁻¹].
+        Wet-canopy evaporation per unit canopy-covered area (or open-water evaporation)
+        [mm d⁻¹].
     dry : float
-        Dry-canopy potential transpiration [mm d⁻¹].
+        Dry-canopy potential transpiration, Kcb·ETo or its stand-in [mm d⁻¹].
     soil_pot : float
-        Potential soil evaporation [mm d⁻¹].
-    capacity : float
-        Canopy storage capacity [mm].
+        Energy left for soil evaporation, (Kc,max − Kcb)·ETo [mm d⁻¹].
+    lai : float
+        Leaf area index of the day [m² m⁻²].
+    cover : float
+        Canopy cover fraction of the day, c = 1 − exp(−k·LAI) (Beer's law), 0..1 [-].
+    capacity_per_lai : float
+        Canopy storage per unit LAI [mm].
     inv_rain_rate : float
         1 / rainfall intensity while raining [h mm⁻¹].
     retention_dry, retention_average, retention_wet : float
@@ -318,29 +506,37 @@ def tile_day(
         1 / TAW [mm⁻¹].
     inv_readily_span : float
         1 / ((1 − p)·TAW) [mm⁻¹].
+    tew : float
+        Total evaporable water of the surface layer [mm].
+    inv_stage2_span : float
+        1 / (TEW − REW) [mm⁻¹].
     water : float
         1.0 for an open-water tile, else 0.0 [-].
-    canopy_store, soil_store : float
-        Canopy and root-zone stores at the start of the day [mm].
+    canopy_store, soil_store, surface_depletion : float
+        Canopy store per unit ground area, root-zone store and surface-layer depletion at the
+        start of the day [mm].
 
     Returns
     -------
     tuple of float
         interception, throughfall, transpiration, soil_evap, open_water, quickflow, drainage
-        [mm d⁻¹], then the canopy and soil stores at the end of the day [mm].
+        [mm d⁻¹], then the canopy store, soil store and surface-layer depletion at the end of
+        the day [mm].
 
     Notes
     -----
-    Order: interception (:func:`canopy_day`); quickflow from throughfall
-    (:func:`curve_number_runoff` with :func:`wetness_retention`); root zone (transpiration, then
-    soil evaporation); drainage of the water above TAW.
+    Order: canopy (:func:`sparse_canopy_day`, with S = capacity_per_lai·LAI and the day's
+    cover c); quickflow from throughfall (:func:`curve_number_runoff` with
+    :func:`wetness_retention`); root zone: transpiration, then soil evaporation from the surface
+    layer (:func:`surface_layer_evaporation`); drainage of the water above TAW.
 
-    Transpiration = Ks·E_dry·(1 − E_int/E_wet), with FAO-56 eq. 84
+    Transpiration = Ks·E_dry·(1 − E_int/(c·E_wet)), with FAO-56 eq. 84
     Ks = (TAW − Dr)/((1 − p)·TAW) capped at 1, Dr taken at the start of the day. The factor
-    (1 − E_int/E_wet) removes the share of the day's energy already spent on intercepted water.
+    removes the share of the canopy's energy already spent on intercepted water (wet grass
+    transpires less by about what its leaves evaporate: Burgy & Pomeroy 1958).
 
-    Soil evaporation = Kr·E_soil with Kr = W/TAW: FAO-56 eq. 74, Kr = (TEW − De)/(TEW − REW),
-    applied to the whole root zone with TEW = TAW and REW = 0 (no separate surface layer).
+    Soil evaporation gets the energy the canopy leaves of Kc,max·ETo: FAO-56 eq. 71's
+    (Kc,max − Kcb)·ETo with the day's interception plus transpiration in place of Kcb·ETo.
 
     Both are limited to the water the store holds after infiltration. Drainage follows
     evaporation, as in FAO-56 eq. 88: DP = (P − RO) − ET − Dr,i−1 when positive.
@@ -351,27 +547,41 @@ def tile_day(
     References
     ----------
     Allen, R. G., Pereira, L. S., Raes, D. & Smith, M. (1998). Crop evapotranspiration. FAO
-    Irrigation and Drainage Paper 56, eqs. 74, 84, 85, 88.
+    Irrigation and Drainage Paper 56, eqs. 71-79, 84, 85, 88.
+    Gash, J. H. C., Lloyd, C. R. & Lachaud, G. (1995). J. Hydrol., 170, 79-86.
+    Burgy, R. H. & Pomeroy, C. R. (1958). Interception losses in grassy vegetation. Trans. AGU,
+    39(6), 1095-1100.
     """
-    interception, throughfall, canopy_end = canopy_day(
-        rain, wet, capacity, inv_rain_rate, canopy_store
+    interception, throughfall, canopy_end = sparse_canopy_day(
+        rain, wet, cover, capacity_per_lai * lai, inv_rain_rate, canopy_store
     )
 
     wetness = soil_store * inv_taw
     retention = wetness_retention(retention_dry, retention_average, retention_wet, wetness)
     quickflow = curve_number_runoff(throughfall, retention)
-    available = soil_store + throughfall - quickflow
+    infiltration = throughfall - quickflow
+    available = soil_store + infiltration
 
-    wet_energy_used = min(interception / max(wet, _TINY), 1.0)  # E_int / E_wet in [0, 1]
+    wet_energy_used = min(interception / max(cover * wet, _TINY), 1.0)  # E_int / (c E_wet)
     ks = min(soil_store * inv_readily_span, 1.0)  # FAO-56 eq. 84
     transpiration = min(ks * dry * (1.0 - wet_energy_used), available)
-    soil_evap = min(wetness * soil_pot, available - transpiration)  # FAO-56 eq. 74, REW = 0
+    kc_max_et0 = soil_pot + dry  # Kc,max·ETo (the forcing's soil_pot is Kc,max·ETo − E_dry)
+    soil_evap, depletion_end = surface_layer_evaporation(
+        infiltration,
+        max(kc_max_et0 - interception - transpiration, 0.0),  # FAO-56 eq. 71, energy left
+        kc_max_et0,
+        1.0 - cover,
+        tew,
+        inv_stage2_span,
+        surface_depletion,
+        available - transpiration,
+    )
     after_et = available - transpiration - soil_evap
     soil_end = min(after_et, taw)
     drainage = after_et - soil_end  # FAO-56 eq. 88: DP = (P − RO) − ET − Dr,i−1 ≥ 0
 
     if water > 0.5:
-        return 0.0, 0.0, 0.0, 0.0, wet, rain - wet, 0.0, 0.0, 0.0
+        return 0.0, 0.0, 0.0, 0.0, wet, rain - wet, 0.0, 0.0, 0.0, 0.0
     return (
         interception,
         throughfall,
@@ -382,19 +592,20 @@ def tile_day(
         drainage,
         canopy_end,
         soil_end,
+        depletion_end,
     )
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _all_valid(a, b, c, d):
-    """Tell whether four values are all finite and non-negative.
+def _all_valid(a, b, c, d, e):
+    """Tell whether five values are all finite and non-negative.
 
-    ``min(a, b, c, d) + (a + b + c + d)·0`` is ≥ 0 exactly when none is negative and none is
+    ``min(a, …, e) + (a + … + e)·0`` is ≥ 0 exactly when none is negative and none is
     NaN or infinite (0·inf and 0·NaN are NaN, and NaN ≥ 0 is false); it costs a few vector
-    operations instead of two comparisons per value. (Four finite values above 4e307 whose sum
+    operations instead of two comparisons per value. (Finite values above 3e307 whose sum
     overflows would also be flagged; the caller finds no bad value to name in that case.)
     """
-    return min(min(a, b), min(c, d)) + (a + b + c + d) * 0.0 >= 0.0
+    return min(min(min(a, b), min(c, d)), e) + (a + b + c + d + e) * 0.0 >= 0.0
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -439,24 +650,33 @@ def _run(
     wet,
     dry,
     soil_pot,
+    lai,
+    cover,
+    lai_step,
     year_index,
     par,
     st,
     annual,
     daily_yield,
+    daily_drainage,
     daily,
     keep_yield,
+    keep_drainage,
     keep_daily,
 ):
-    """Day loop shared by the ``run_tiles*`` kernels; the two flags are compile-time constants.
+    """Day loop shared by the ``run_tiles*`` kernels; the three flags are compile-time constants.
 
     The daily outputs are written straight from the vectorised tile loop: staging them in state
     rows and copying them out afterwards cost a second pass over the tiles every day.
+    ``lai[d * lai_step, t]`` and ``cover[d * lai_step, t]`` are the leaf area and cover fraction
+    of day ``d``: ``lai_step`` 0 reads one row of constant values (it stays in cache), 1 reads a
+    row per day.
     """
     n_days, n_tiles = rain.shape
     n_blocks = (n_tiles + BLOCK - 1) // BLOCK
     for d in range(n_days):
         y = year_index[d]
+        dl = d * lai_step
         if d == 0 or year_index[d - 1] != y:
             _open_year(y, st, annual, n_tiles)
         for b in range(n_blocks):
@@ -468,13 +688,16 @@ def _run(
                 w = wet[d, t0 + j]
                 dr = dry[d, t0 + j]
                 sp = soil_pot[d, t0 + j]
-                ok = _all_valid(r, w, dr, sp)
+                la = lai[dl, t0 + j]
+                ok = _all_valid(r, w, dr, sp, la)
                 capacity = par[p0 + P_CAPACITY * BLOCK + j]
-                ic, tf, tr, es, ow, qf, dn, c_end, s_end = tile_day(
+                ic, tf, tr, es, ow, qf, dn, c_end, s_end, e_end = tile_day(
                     r,
                     w,
                     dr,
                     sp,
+                    la,
+                    cover[dl, t0 + j],
                     capacity,
                     par[p0 + P_INV_RAIN_RATE * BLOCK + j],
                     par[p0 + P_RETENTION_DRY * BLOCK + j],
@@ -483,12 +706,16 @@ def _run(
                     par[p0 + P_TAW * BLOCK + j],
                     par[p0 + P_INV_TAW * BLOCK + j],
                     par[p0 + P_INV_READILY_SPAN * BLOCK + j],
+                    par[p0 + P_TEW * BLOCK + j],
+                    par[p0 + P_INV_STAGE2_SPAN * BLOCK + j],
                     1.0 if capacity < 0.0 else 0.0,
                     st[s0 + S_CANOPY * BLOCK + j],
                     st[s0 + S_SOIL * BLOCK + j],
+                    st[s0 + S_SURFACE * BLOCK + j],
                 )
                 st[s0 + S_CANOPY * BLOCK + j] = c_end
                 st[s0 + S_SOIL * BLOCK + j] = s_end
+                st[s0 + S_SURFACE * BLOCK + j] = e_end
                 st[s0 + S_RAIN * BLOCK + j] += r if ok else np.nan
                 st[s0 + S_WET_SURFACE * BLOCK + j] += ic + ow  # one of the two is 0.0
                 st[s0 + S_TRANSPIRATION * BLOCK + j] += tr
@@ -497,6 +724,8 @@ def _run(
                 st[s0 + S_DRAINAGE * BLOCK + j] += dn
                 if keep_yield:
                     daily_yield[d, t0 + j] = qf + dn
+                if keep_drainage:
+                    daily_drainage[d, t0 + j] = dn
                 if keep_daily:
                     daily[0, d, t0 + j] = ic
                     daily[1, d, t0 + j] = tf
@@ -507,18 +736,28 @@ def _run(
                     daily[6, d, t0 + j] = dn
                     daily[7, d, t0 + j] = c_end
                     daily[8, d, t0 + j] = s_end
+                    daily[9, d, t0 + j] = e_end
         if d == n_days - 1 or year_index[d + 1] != y:
             _close_year(y, par, st, annual, n_tiles)
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield):
+def run_tiles(
+    rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield
+):
     """Run the daily water balance of many tiles and accumulate annual sums.
 
     Parameters
     ----------
     rain, wet, dry, soil_pot : ndarray, shape (n_days, n_tiles), C-contiguous float64
-        Gross rain, wet-canopy, dry-canopy and soil potential evaporation [mm d⁻¹].
+        Gross rain, wet-canopy evaporation (per covered area), dry-canopy transpiration and the
+        energy left for soil evaporation [mm d⁻¹].
+    lai, cover : ndarray, shape (n_days, n_tiles) or (1, n_tiles), C-contiguous float64
+        Leaf area index [m² m⁻²] and canopy cover fraction 1 − exp(−k·LAI) [-] per day, or one
+        constant row each (the caller computes the cover: an exp per tile-day would cost the
+        loop more than reading a row).
+    lai_step : int
+        1 when ``lai`` and ``cover`` have a row per day, 0 for one constant row [-].
     year_index : ndarray of int64, shape (n_days,)
         Year number of each day, non-decreasing from 0 in steps of 0 or 1 [-].
     par : ndarray, shape (n_blocks·N_PAR·BLOCK,)
@@ -536,28 +775,45 @@ def run_tiles(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield
     -----
     The daily physics is :func:`tile_day`.
     """
-    _run(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, annual, True, False)
+    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield,
+         daily_yield, annual, True, False, False)
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles_annual(rain, wet, dry, soil_pot, year_index, par, st, annual):
+def run_tiles_routed(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual,
+                     daily_yield, daily_drainage):
+    """Run as :func:`run_tiles` does, also keeping each day's drainage (for two-store routing).
+
+    Parameters
+    ----------
+    daily_drainage : ndarray, shape (n_days, n_tiles), same dtype as ``daily_yield``
+        Drainage below the root zone of each day out [mm d⁻¹].
+    """
+    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield,
+         daily_drainage, annual, True, True, False)
+
+
+@njit(cache=True, error_model="numpy")
+def run_tiles_annual(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual):
     """Run as :func:`run_tiles` does, keeping the annual sums only (no daily yield).
 
     Parameters
     ----------
-    rain, wet, dry, soil_pot, year_index, par, st, annual
+    rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual
         As for :func:`run_tiles`.
     """
-    _run(rain, wet, dry, soil_pot, year_index, par, st, annual, annual, annual, False, False)
+    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, annual, annual,
+         annual, False, False, False)
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles_daily(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, daily):
-    """Run as :func:`run_tiles` does, also keeping every daily flux and store.
+def run_tiles_daily(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual,
+                    daily_yield, daily_drainage, daily):
+    """Run as :func:`run_tiles_routed` does, also keeping every daily flux and store.
 
     Parameters
     ----------
-    daily : ndarray, shape (9, n_days, n_tiles)
+    daily : ndarray, shape (10, n_days, n_tiles)
         Daily fluxes [mm d⁻¹] and end-of-day stores [mm] out, rows in the order of
         :data:`DAILY_NAMES`.
 
@@ -565,4 +821,5 @@ def run_tiles_daily(rain, wet, dry, soil_pot, year_index, par, st, annual, daily
     -----
     Separate kernels rather than run-time flags keep the fast kernel free of the extra stores.
     """
-    _run(rain, wet, dry, soil_pot, year_index, par, st, annual, daily_yield, daily, True, True)
+    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield,
+         daily_drainage, daily, True, True, True)

@@ -8,11 +8,15 @@ validates, prepares the compiled kernel's arguments and wraps its results.
 Each day, in this order (all depths in mm over the tile):
 
 1. Canopy interception: a daily Gash-type store (Gash 1979; Rutter et al. 1971 for the carried
-   store), :func:`coveryield.engine.kernels.canopy_day`.
+   store) in its sparse-canopy form (Gash, Lloyd & Lachaud 1995): the canopy covers
+   c = 1 − exp(−k·LAI) of the ground and holds S = s·LAI (Dickinson 1984),
+   :func:`coveryield.engine.kernels.sparse_canopy_day`.
 2. Quickflow from throughfall: SCS curve number (USDA-SCS 1986, TR-55 eqs. 2-1 to 2-4), with the
    retention moved between its AMC I, II and III values by the root-zone wetness.
-3. Root zone (0..TAW): transpiration Ks·E_dry·(1 − E_int/E_wet) with FAO-56 eq. 84; soil
-   evaporation Kr·E_soil with Kr = W/TAW (FAO-56 eq. 74 with TEW = TAW, REW = 0).
+3. Root zone (0..TAW): transpiration Ks·E_dry·(1 − E_int/(c·E_wet)) with FAO-56 eq. 84; soil
+   evaporation from the surface layer on the exposed share 1 − c, by FAO-56's two-stage
+   Kr = (TEW − De)/(TEW − REW) (eqs. 71-79), :func:`~coveryield.engine.kernels.
+   surface_layer_evaporation`.
 4. Drainage of the water above TAW, after evaporation (FAO-56 eq. 88).
 5. Open-water tiles: evaporation = E_wet, quickflow = rain − E_wet (may be negative), no stores.
 
@@ -31,12 +35,20 @@ from coveryield.engine import kernels
 #: maritime climates; common practice, no source.
 DEFAULT_RAIN_RATE_MM_PER_H = 1.5
 
+#: Surface layer of a tile whose soil is not given: the middle of FAO-56 Table 19's ranges for
+#: loam, REW 8-10 mm and TEW 16-22 mm for Ze = 0.10 m (from memory) [mm].
+DEFAULT_READILY_EVAPORABLE_MM = 9.0
+DEFAULT_TOTAL_EVAPORABLE_MM = 19.0
+#: Extinction coefficient of Beer's law for leaves at random angles (Campbell & Norman 1998,
+#: from memory) [-].
+DEFAULT_EXTINCTION = 0.5
+
 #: Root-zone store at the start of a run as a fraction of TAW [-]. Half-full is our choice: it
 #: is the value whose error is smallest in the worst case (a record that starts in a wet winter
 #: or in a dry summer); common practice, no source. Discard a spin-up year when it matters.
 DEFAULT_INITIAL_SOIL_FRACTION = 0.5
 
-_FORCING_NAMES = ("rain_mm", "wet_mm", "dry_mm", "soil_mm")
+_FORCING_NAMES = ("rain_mm", "wet_mm", "dry_mm", "soil_mm", "lai")
 
 
 def _as_tile_array(name, value, n_tiles, dtype=np.float64):
@@ -81,7 +93,9 @@ class TileParameters:
     Parameters
     ----------
     canopy_capacity_mm : array_like
-        Canopy storage capacity S, ≥ 0 [mm].
+        Canopy storage capacity S at the leaf area ``leaf_area_index``, ≥ 0 [mm]. When the
+        day's leaf area differs (a daily ``lai`` given to :func:`simulate_tiles`), the capacity
+        scales with it: S·LAI_day / leaf_area_index.
     root_zone_capacity_mm : array_like
         Total available water TAW = rooting depth × available water capacity, > 0 for land
         tiles (ignored for water tiles) [mm].
@@ -96,7 +110,16 @@ class TileParameters:
         :data:`DEFAULT_RAIN_RATE_MM_PER_H`.
     initial_soil_fraction : array_like or float, optional
         Root-zone store at the start as a fraction of TAW, 0..1 [-]. Default
-        :data:`DEFAULT_INITIAL_SOIL_FRACTION`.
+        :data:`DEFAULT_INITIAL_SOIL_FRACTION`. The surface layer starts equally wet.
+    leaf_area_index : array_like or float or None, optional
+        Leaf area index at which ``canopy_capacity_mm`` holds, > 0 [m² m⁻²]. None (default):
+        a closed canopy, cover fraction 1, no soil exposed and a fixed capacity.
+    extinction_coefficient : array_like or float, optional
+        k of Beer's law, cover fraction c = 1 − exp(−k·LAI), > 0 [-]. Default
+        :data:`DEFAULT_EXTINCTION`.
+    readily_evaporable_mm, total_evaporable_mm : array_like or float, optional
+        REW and TEW of the surface layer (FAO-56 Table 19), 0 ≤ REW < TEW [mm]. Defaults
+        :data:`DEFAULT_READILY_EVAPORABLE_MM` and :data:`DEFAULT_TOTAL_EVAPORABLE_MM`.
 
     Raises
     ------
@@ -112,6 +135,10 @@ class TileParameters:
     is_water: np.ndarray
     rain_rate_mm_per_h: np.ndarray | float = DEFAULT_RAIN_RATE_MM_PER_H
     initial_soil_fraction: np.ndarray | float = DEFAULT_INITIAL_SOIL_FRACTION
+    leaf_area_index: np.ndarray | float | None = None
+    extinction_coefficient: np.ndarray | float = DEFAULT_EXTINCTION
+    readily_evaporable_mm: np.ndarray | float = DEFAULT_READILY_EVAPORABLE_MM
+    total_evaporable_mm: np.ndarray | float = DEFAULT_TOTAL_EVAPORABLE_MM
 
     def __post_init__(self):
         first = _as_tile_array("canopy_capacity_mm", self.canopy_capacity_mm, None)
@@ -119,12 +146,14 @@ class TileParameters:
         if n_tiles == 0:
             raise ValueError("TileParameters: no tiles (expected at least one)")
         for field in fields(self):
+            if getattr(self, field.name) is None:
+                continue
             dtype = bool if field.name == "is_water" else np.float64
             value = _as_tile_array(field.name, getattr(self, field.name), n_tiles, dtype)
             object.__setattr__(self, field.name, value)
         for field in fields(self):
             values = getattr(self, field.name)
-            if values.dtype != bool:
+            if values is not None and values.dtype != bool:
                 _check_range(field.name, values, np.isfinite(values), "a finite number")
         land = ~self.is_water
         _check_range(
@@ -157,11 +186,44 @@ class TileParameters:
             (self.initial_soil_fraction >= 0) & (self.initial_soil_fraction <= 1),
             "a fraction of TAW in 0..1",
         )
+        if self.leaf_area_index is not None:
+            lai = self.leaf_area_index
+            _check_range("leaf_area_index", lai, lai >= 0, "≥ 0 m2/m2")
+            _check_range(
+                "leaf_area_index",
+                lai,
+                ~land | (lai > 0) | (self.canopy_capacity_mm == 0),
+                "> 0 m2/m2 where canopy_capacity_mm > 0 (the store scales with leaf area)",
+            )
+        _check_range(
+            "extinction_coefficient",
+            self.extinction_coefficient,
+            self.extinction_coefficient > 0,
+            "> 0",
+        )
+        _check_range(
+            "readily_evaporable_mm",
+            self.readily_evaporable_mm,
+            self.readily_evaporable_mm >= 0,
+            "≥ 0 mm",
+        )
+        _check_range(
+            "total_evaporable_mm",
+            self.total_evaporable_mm,
+            self.total_evaporable_mm > self.readily_evaporable_mm,
+            "> readily_evaporable_mm (TEW > REW)",
+        )
 
     @property
     def n_tiles(self) -> int:
         """Number of tiles [-]."""
         return int(self.is_water.shape[0])
+
+    def reference_lai(self) -> np.ndarray:
+        """Leaf area index of each tile when no daily one is given [m² m⁻²] (1 if closed)."""
+        if self.leaf_area_index is None:
+            return np.ones(self.n_tiles)
+        return np.array(self.leaf_area_index)
 
 
 def dry_curve_number(curve_number):
@@ -244,8 +306,11 @@ def _kernel_parameters(params: TileParameters) -> np.ndarray:
     water = params.is_water
     taw = np.where(water, 1.0, params.root_zone_capacity_mm)
     cn = np.where(water, 100.0, params.curve_number)
+    lai = params.reference_lai()
+    with np.errstate(divide="ignore", invalid="ignore"):
+        per_lai = np.where(lai > 0, params.canopy_capacity_mm / lai, 0.0)
     rows = [None] * kernels.N_PAR
-    rows[kernels.P_CAPACITY] = np.where(water, kernels.WATER_CAPACITY, params.canopy_capacity_mm)
+    rows[kernels.P_CAPACITY] = np.where(water, kernels.WATER_CAPACITY, per_lai)
     rows[kernels.P_INV_RAIN_RATE] = 1.0 / params.rain_rate_mm_per_h
     rows[kernels.P_RETENTION_DRY] = retention_mm(dry_curve_number(cn))
     rows[kernels.P_RETENTION_AVERAGE] = retention_mm(cn)
@@ -253,15 +318,21 @@ def _kernel_parameters(params: TileParameters) -> np.ndarray:
     rows[kernels.P_TAW] = taw
     rows[kernels.P_INV_TAW] = 1.0 / taw
     rows[kernels.P_INV_READILY_SPAN] = 1.0 / ((1.0 - params.depletion_fraction) * taw)
+    rows[kernels.P_TEW] = params.total_evaporable_mm
+    rows[kernels.P_INV_STAGE2_SPAN] = 1.0 / (
+        params.total_evaporable_mm - params.readily_evaporable_mm
+    )
     return kernels.pack_blocks(rows)
 
 
 def _initial_state(params: TileParameters) -> np.ndarray:
-    """Kernel state at the start: empty canopy, soil at its initial fraction of TAW."""
+    """Kernel state at the start: empty canopy, soil and surface layer equally wet."""
     n = params.n_tiles
     rows = [np.zeros(n) for _ in range(kernels.N_STATE)]
     soil = params.initial_soil_fraction * params.root_zone_capacity_mm
     rows[kernels.S_SOIL] = np.where(params.is_water, 0.0, soil)
+    depletion = (1.0 - params.initial_soil_fraction) * params.total_evaporable_mm
+    rows[kernels.S_SURFACE] = np.where(params.is_water, 0.0, depletion)
     return kernels.pack_blocks(rows)
 
 
@@ -290,7 +361,7 @@ def _check_forcing(arrays, n_tiles):
     """Return the forcing as C-contiguous float64 arrays of one shape (n_days, n_tiles)."""
     shape = np.shape(arrays[0])
     out = []
-    for name, value in zip(_FORCING_NAMES, arrays, strict=True):
+    for name, value in zip(_FORCING_NAMES, arrays, strict=False):
         array = np.ascontiguousarray(value, dtype=np.float64)
         if array.ndim != 2 or array.shape != shape or array.shape[1] != n_tiles:
             raise ValueError(
@@ -303,17 +374,40 @@ def _check_forcing(arrays, n_tiles):
     return out
 
 
+def _leaf_area(lai, params: TileParameters, shape):
+    """The kernel's leaf-area rows and their step: one constant row (step 0) or one per day."""
+    if lai is None:
+        return np.ascontiguousarray(params.reference_lai().reshape(1, -1)), 0
+    array = np.ascontiguousarray(lai, dtype=np.float64)
+    if array.shape != shape:
+        raise ValueError(
+            f"lai: shape {array.shape}, expected {shape} (n_days, n_tiles) like rain_mm: one "
+            "leaf area index per day and tile"
+        )
+    return array, 1
+
+
+def _cover_rows(leaf_area, params: TileParameters) -> np.ndarray:
+    """Canopy cover fraction for the kernel's leaf-area rows: 1 − exp(−k·LAI), 1 if closed."""
+    if params.leaf_area_index is None:
+        return np.ones_like(leaf_area)
+    cover = np.empty_like(leaf_area)
+    kernels.cover_fraction_rows(leaf_area, params.extinction_coefficient, cover)
+    return cover
+
+
 def _raise_first_bad_value(arrays, bad_tiles):
     """Raise ValueError naming the first negative or non-finite forcing value."""
-    for name, array in zip(_FORCING_NAMES, arrays, strict=True):
+    for name, array in zip(_FORCING_NAMES, arrays, strict=False):
         columns = array[:, bad_tiles]
         bad = ~((columns >= 0) & np.isfinite(columns))
         if bad.any():
             day, column = np.argwhere(bad)[0]
             tile = int(bad_tiles[column])
+            unit = "m2/m2" if name == "lai" else "mm/d"
             raise ValueError(
                 f"{name}[day {day}, tile {tile}] = {float(array[day, tile])!r}: expected a "
-                f"finite value ≥ 0 mm/d ({int(bad.sum())} invalid value(s) in {name})"
+                f"finite value ≥ 0 {unit} ({int(bad.sum())} invalid value(s) in {name})"
             )
 
 
@@ -380,12 +474,16 @@ class TileRun:
         With ``keep_daily``: every daily flux [mm d⁻¹] (``interception_mm``,
         ``throughfall_mm``, ``transpiration_mm``, ``soil_evap_mm``, ``open_water_mm``,
         ``quickflow_mm``, ``drainage_mm``) and end-of-day store [mm] (``canopy_store_mm``,
-        ``soil_store_mm``), each shaped (n_days, n_tiles).
+        ``soil_store_mm``, ``surface_depletion_mm``), each shaped (n_days, n_tiles).
+    daily_drainage_mm : ndarray, shape (n_days, n_tiles), or None
+        Drainage below the root zone of each day [mm d⁻¹]; with ``keep_daily_drainage`` (or
+        ``keep_daily``). Quickflow of the day is ``daily_yield_mm − daily_drainage_mm``.
     """
 
     annual: TileAnnual
     daily_yield_mm: np.ndarray | None
     daily: dict[str, np.ndarray] | None = None
+    daily_drainage_mm: np.ndarray | None = None
 
 
 def simulate_tiles(
@@ -396,8 +494,10 @@ def simulate_tiles(
     params: TileParameters,
     year_index,
     *,
+    lai=None,
     keep_daily: bool = False,
     keep_daily_yield: bool = True,
+    keep_daily_drainage: bool = False,
     daily_dtype=None,
     out: np.ndarray | None = None,
 ) -> TileRun:
@@ -408,25 +508,31 @@ def simulate_tiles(
     rain_mm : array_like, shape (n_days, n_tiles)
         Gross rain on each tile [mm d⁻¹].
     wet_mm : array_like, shape (n_days, n_tiles)
-        Potential evaporation of a fully wet canopy (Penman–Monteith with rs = 0); for a water
-        tile, open-water evaporation [mm d⁻¹].
+        Evaporation of a fully wet canopy (Penman–Monteith with rs = 0) per unit of
+        canopy-covered area; for a water tile, open-water evaporation [mm d⁻¹].
     dry_mm : array_like, shape (n_days, n_tiles)
-        Potential transpiration of the dry canopy [mm d⁻¹].
+        Potential transpiration of the dry canopy (Kcb·ETo or its stand-in) [mm d⁻¹].
     soil_mm : array_like, shape (n_days, n_tiles)
-        Potential soil evaporation (> 0 only in bare or sparse periods) [mm d⁻¹].
+        Energy left for soil evaporation, (Kc,max − Kcb)·ETo (FAO-56 eq. 71) [mm d⁻¹]; the
+        engine applies the exposed share and the surface layer's drying.
     params : TileParameters
         Per-tile parameters (n_tiles each) [various units].
     year_index : array_like of int, shape (n_days,)
         Year number of each day: 0, …, n_years − 1, non-decreasing without gaps [-].
+    lai : array_like, shape (n_days, n_tiles), optional
+        Leaf area index of each day and tile [m² m⁻²] (a crop's season, a plantation's growth).
+        Default: each tile's ``params.leaf_area_index`` every day.
     keep_daily : bool, optional
-        Also return every daily flux and store (costs 9 float64 arrays of n_days × n_tiles).
+        Also return every daily flux and store (costs 10 float64 arrays of n_days × n_tiles).
     keep_daily_yield : bool, optional
         Return the daily yield (default). False keeps the annual sums only, which is faster and
         needs no n_days × n_tiles output (e.g. for an ensemble of parameter sets).
+    keep_daily_drainage : bool, optional
+        Also return each day's drainage (to route quickflow and drainage apart).
     daily_dtype : numpy dtype, optional
-        ``np.float64`` (default) or ``np.float32`` for the daily yield; float32 halves its
-        memory and writing time and rounds each day to about 7 significant digits. The annual
-        sums are always accumulated in float64 from the unrounded daily values.
+        ``np.float64`` (default) or ``np.float32`` for the daily yield and drainage; float32
+        halves their memory and writing time and rounds each day to about 7 significant
+        digits. The annual sums are always accumulated in float64 from the unrounded values.
     out : ndarray, shape (n_days, n_tiles), optional
         C-contiguous float64 or float32 array to write the daily yield into, e.g. one reused
         across runs so that no fresh memory is allocated and touched; it is returned as
@@ -437,7 +543,7 @@ def simulate_tiles(
     -------
     TileRun
         Annual sums (n_years, n_tiles) [mm], daily yield (n_days, n_tiles) [mm d⁻¹] and, if
-        asked, the daily fluxes and stores.
+        asked, the daily drainage, fluxes and stores.
 
     Raises
     ------
@@ -452,39 +558,48 @@ def simulate_tiles(
     """
     forcing = _check_forcing((rain_mm, wet_mm, dry_mm, soil_mm), params.n_tiles)
     n_days, n_tiles = forcing[0].shape
+    leaf_area, lai_step = _leaf_area(lai, params, (n_days, n_tiles))
     years = _check_year_index(year_index, n_days)
     n_years = int(years[-1]) + 1
-    if keep_daily and not keep_daily_yield:
-        raise ValueError(
-            "keep_daily=True needs keep_daily_yield=True (the daily yield is one of "
-            "the daily outputs)"
-        )
+    for flag, on in (("keep_daily", keep_daily), ("keep_daily_drainage", keep_daily_drainage)):
+        if on and not keep_daily_yield:
+            raise ValueError(
+                f"{flag}=True needs keep_daily_yield=True (the daily yield is one of the daily "
+                "outputs)"
+            )
 
     par = _kernel_parameters(params)
     state = _initial_state(params)
     annual = np.zeros((len(kernels.ANNUAL_NAMES), n_years, n_tiles))
-    daily_yield = None
-    daily = None
+    daily_yield = drainage = daily = None
     if keep_daily_yield:
         daily_yield = _daily_yield_array(out, daily_dtype, (n_days, n_tiles))
     elif out is not None:
         raise ValueError("out: given with keep_daily_yield=False (expected None)")
+    if keep_daily or keep_daily_drainage:
+        drainage = np.empty((n_days, n_tiles), dtype=daily_yield.dtype)
+    cover = _cover_rows(leaf_area, params)
+    inputs = (*forcing, leaf_area, cover, lai_step, years, par, state, annual)
     if keep_daily:
         daily = np.empty((kernels.N_DAILY, n_days, n_tiles))
-        kernels.run_tiles_daily(*forcing, years, par, state, annual, daily_yield, daily)
+        kernels.run_tiles_daily(*inputs, daily_yield, drainage, daily)
+    elif keep_daily_drainage:
+        kernels.run_tiles_routed(*inputs, daily_yield, drainage)
     elif keep_daily_yield:
-        kernels.run_tiles(*forcing, years, par, state, annual, daily_yield)
+        kernels.run_tiles(*inputs, daily_yield)
     else:
-        kernels.run_tiles_annual(*forcing, years, par, state, annual)
+        kernels.run_tiles_annual(*inputs)
 
     # the kernel marks a year with an invalid input day by a NaN rain sum
     bad_tiles = np.flatnonzero(np.isnan(annual[kernels.A_RAIN]).any(axis=0))
     if bad_tiles.size:
-        _raise_first_bad_value(forcing, bad_tiles)
+        _raise_first_bad_value((*forcing, np.broadcast_to(leaf_area, forcing[0].shape)), bad_tiles)
 
     result = TileAnnual(**dict(zip(kernels.ANNUAL_NAMES, annual, strict=True)))
     daily_dict = None if daily is None else dict(zip(kernels.DAILY_NAMES, daily, strict=True))
-    return TileRun(annual=result, daily_yield_mm=daily_yield, daily=daily_dict)
+    return TileRun(
+        annual=result, daily_yield_mm=daily_yield, daily=daily_dict, daily_drainage_mm=drainage
+    )
 
 
 _DAILY_DTYPES = (np.dtype(np.float64), np.dtype(np.float32))

@@ -1,4 +1,4 @@
-"""Penman-Monteith evaporation: resistances, general equation, reference ET and open water.
+"""Penman-Monteith evaporation: resistances, general equation, reference ET, Penman open water.
 
 Reference ET comes as FAO-56 grass and ASCE-EWRI (2005) short and tall references.
 
@@ -47,7 +47,7 @@ from .radiation import (
     net_radiation,
     net_shortwave_radiation,
 )
-from .wind import DISPLACEMENT_PER_HEIGHT, ROUGHNESS_PER_HEIGHT, wind_over_surface
+from .wind import DISPLACEMENT_PER_HEIGHT, ROUGHNESS_PER_HEIGHT
 
 #: von Kármán constant [-].
 VON_KARMAN = 0.41
@@ -55,10 +55,6 @@ VON_KARMAN = 0.41
 SECONDS_PER_DAY = 86400.0
 #: Heat-and-vapour roughness as a fraction of the momentum roughness (FAO-56 eq. 4) [-].
 HEAT_ROUGHNESS_PER_MOMENTUM = 0.1
-#: Albedo of open water, daily mean [-].
-WATER_ALBEDO = 0.08
-#: Roughness length of open water [m].
-WATER_ROUGHNESS_M = 0.001
 
 
 @dataclass(frozen=True)
@@ -167,34 +163,6 @@ def aerodynamic_resistance(wind_ms, wind_height_m, canopy_height_m):
         ln_h = np.log(np.where(valid, (z - d) / z0h, np.nan))
         ra = ln_m * ln_h / (VON_KARMAN**2 * _arr(wind_ms))  # FAO-56 eq. 4
     return _like(ra, wind_ms, wind_height_m, canopy_height_m)
-
-
-def open_water_aerodynamic_resistance(wind_ms, wind_height_m, roughness_m=WATER_ROUGHNESS_M):
-    """Aerodynamic resistance over open water (neutral log profile, d = 0, z0h = z0m).
-
-    Parameters
-    ----------
-    wind_ms : float or array_like
-        Wind speed over the water at ``wind_height_m`` [m s-1].
-    wind_height_m : float
-        Measurement height above the water [m].
-    roughness_m : float, optional
-        Roughness length of the water surface [m].
-
-    Returns
-    -------
-    float or array_like
-        ra = ln(z/z0)^2 / (k^2 uz) [s m-1]; about 344/u2 at z = 2 m, z0 = 0.001 m.
-
-    References
-    ----------
-    FAO-56 (Allen et al. 1998), eq. 4 with d = 0 and z0h = z0m (neutral log profile).
-    """
-    with np.errstate(divide="ignore"):
-        ra = np.log(_arr(wind_height_m) / roughness_m) ** 2 / (
-            VON_KARMAN**2 * _arr(wind_ms)
-        )  # FAO-56 eq. 4, d = 0
-    return _like(ra, wind_ms, wind_height_m)
 
 
 def penman_monteith(
@@ -388,76 +356,6 @@ def fao56_reference_evaporation(
         slope_coefficient=m.slope_coefficient,
     )
     return _like(eto, tmax_c, tmin_c, ea_kpa, rs_mj, u2_ms, doy)
-
-
-def open_water_evaporation(
-    tmax_c,
-    tmin_c,
-    ea_kpa,
-    rs_mj,
-    wind_ms,
-    doy,
-    lat_deg,
-    elevation_m,
-    wind_height_m=2.0,
-    albedo=WATER_ALBEDO,
-    roughness_m=WATER_ROUGHNESS_M,
-):
-    """Daily open-water evaporation by Penman-Monteith with zero surface resistance.
-
-    Parameters
-    ----------
-    tmax_c : float or array_like
-        Daily maximum air temperature [°C].
-    tmin_c : float or array_like
-        Daily minimum air temperature [°C].
-    ea_kpa : float or array_like
-        Actual vapour pressure [kPa].
-    rs_mj : float or array_like
-        Incoming solar radiation [MJ m-2 d-1].
-    wind_ms : float or array_like
-        Wind speed measured over short grass at ``wind_height_m`` [m s-1].
-    doy : int or array_like
-        Day of the year, 1-366 [day].
-    lat_deg : float
-        Latitude, negative south [°].
-    elevation_m : float
-        Site elevation [m].
-    wind_height_m : float, optional
-        Wind measurement height [m].
-    albedo : float, optional
-        Albedo of the water [-].
-    roughness_m : float, optional
-        Roughness length of the water surface [m].
-
-    Returns
-    -------
-    float or array_like
-        Evaporation [mm d-1].
-
-    Notes
-    -----
-    Net radiation as FAO-56 eqs. 37-40 with the water albedo; the station wind is moved over the
-    water to 2 m by the blending-height log profile (:func:`wind.wind_over_surface`, d = 0,
-    z0 = 0.001 m); ra = ln(2/z0)^2/(k^2 u); eq. 3 with rs = 0 and G = 0. Air temperature stands
-    in for the water-surface temperature and heat storage in the water body is ignored, so the
-    result suits shallow water bodies and long-term totals, not the seasonal lag of deep lakes.
-
-    References
-    ----------
-    FAO-56 (Allen et al. 1998), eqs. 3, 4 and 37-40; Monteith (1965).
-    """
-    tmean = 0.5 * (_arr(tmax_c) + _arr(tmin_c))  # FAO-56 eq. 9
-    pressure = _arr(atmospheric_pressure(elevation_m))
-    es = _arr(mean_saturation_vapour_pressure(tmax_c, tmin_c))
-    rso = clear_sky_radiation(lat_deg, doy, elevation_m)
-    rns = net_shortwave_radiation(rs_mj, albedo)
-    rnl = net_longwave_radiation(tmax_c, tmin_c, ea_kpa, rs_mj, rso)
-    rn = _arr(net_radiation(rns, rnl))
-    u_water = wind_over_surface(wind_ms, wind_height_m, 2.0, 0.0, roughness_m)
-    ra = open_water_aerodynamic_resistance(u_water, 2.0, roughness_m)
-    e = penman_monteith(rn, 0.0, tmean, es, ea_kpa, pressure, ra, 0.0)
-    return _like(e, tmax_c, tmin_c, ea_kpa, rs_mj, wind_ms, doy)
 
 
 def penman_open_water(net_radiation_mj, tmean_c, es_kpa, ea_kpa, pressure_kpa, u2_ms):

@@ -199,3 +199,34 @@ def test_show_dashboard_reads_plan_and_read_only_from_the_environment(demo_plan,
     assert dash.state.plan_file.catchment.name
     monkeypatch.setenv("COVERYIELD_READ_ONLY", "0")
     assert show_dashboard().manager is not None
+
+
+def test_low_flow_card_and_monthly_streamflow_follow_the_edit(dashboard):
+    # issue 10: 7Q, baseflow index, days below the threshold and monthly streamflow on the page
+    dash = dashboard
+    card = dash.headline.cards["low-flows"]
+    chart = dash.charts.chart("monthly-flow")
+    assert "7Q" in card.main.value
+    assert "baseflow index" in card.detail.value
+    assert "d/yr below 0.1" in card.detail.value  # the demo's low_flow_m3s
+    current_before = np.array(chart.current.y, copy=True)
+    np.testing.assert_allclose(np.array(chart.edited.y),
+                               dash.state.outcome.monthly_flow_m3s.to_numpy())
+    np.testing.assert_allclose(current_before, dash.state.baseline.monthly_flow_m3s.to_numpy())
+    edited_before = np.array(chart.edited.y, copy=True)
+    dash.controls.zone_picker.value = "upper"
+    dash.controls.sliders["forest"].value = min(100.0, dash.controls.sliders["forest"].value + 30)
+    np.testing.assert_allclose(np.array(chart.current.y), current_before)  # current unchanged
+    # planting lowers the flow (Farley et al. 2005)
+    assert np.array(chart.edited.y).mean() < edited_before.mean()
+    assert "\u2212" in card.main.value
+
+
+def test_page_says_what_yield_and_the_curve_are(dashboard):
+    # issue 12 items 3 and 4: the yield definition beside the monthly chart and in the footer,
+    # and one sentence on what the Zhang curve is
+    text = " ".join(getattr(w, "value", "") for w in _all_widgets(dashboard)
+                    if isinstance(getattr(w, "value", None), str))
+    assert "open-water balance" in text
+    assert "can be negative" in text
+    assert "empirical relation, fitted to 250 catchments" in text

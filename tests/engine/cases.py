@@ -18,6 +18,12 @@ class Case:
     soil: np.ndarray
     params: TileParameters
     year_index: np.ndarray
+    lai: np.ndarray | None = None
+
+    @property
+    def args(self):
+        """Positional arguments of ``simulate_tiles``."""
+        return (self.rain, self.wet, self.dry, self.soil, self.params, self.year_index)
 
 
 def _mostly(rng, shape, zero_share, scale):
@@ -26,7 +32,11 @@ def _mostly(rng, shape, zero_share, scale):
 
 
 def make_case(seed: int, n_days: int, n_tiles: int, n_years: int) -> Case:
-    """Random forcing and parameters, including edge values (zeros, CN 100, tiny TAW, water)."""
+    """Random forcing and parameters, including edge values (zeros, CN 100, tiny TAW, water).
+
+    Half the cases have a closed canopy (no leaf area given), the others a leaf area per tile,
+    and of those half again a leaf area that changes every day (with days of no leaves).
+    """
     rng = np.random.default_rng(seed)
     shape = (n_days, n_tiles)
     rain = _mostly(rng, shape, 0.4, rng.choice([0.5, 5.0, 30.0]))
@@ -34,6 +44,9 @@ def make_case(seed: int, n_days: int, n_tiles: int, n_years: int) -> Case:
     wet = _mostly(rng, shape, 0.1, rng.uniform(0.5, 8.0))
     dry = _mostly(rng, shape, 0.1, rng.uniform(0.5, 6.0))
     soil = _mostly(rng, shape, 0.5, 1.0)
+    style = rng.integers(0, 4)  # 0-1 closed canopy, 2 leaf area per tile, 3 leaf area per day
+    leaf_area = rng.choice([0.3, 1.0, 2.88, 6.0, 12.0], n_tiles) if style >= 2 else None
+    rew = rng.choice([0.0, 2.0, 9.0], n_tiles)
     params = TileParameters(
         canopy_capacity_mm=np.where(rng.random(n_tiles) < 0.2, 0.0, rng.uniform(0, 3, n_tiles)),
         root_zone_capacity_mm=rng.choice([1.0, 5.0, 60.0, 150.0, 400.0], n_tiles),
@@ -42,7 +55,15 @@ def make_case(seed: int, n_days: int, n_tiles: int, n_years: int) -> Case:
         is_water=rng.random(n_tiles) < 0.2,
         rain_rate_mm_per_h=rng.choice([0.2, 1.5, 20.0], n_tiles),
         initial_soil_fraction=rng.choice([0.0, 0.5, 1.0, rng.uniform()], n_tiles),
+        leaf_area_index=leaf_area,
+        extinction_coefficient=rng.choice([0.3, 0.5, 0.9], n_tiles),
+        readily_evaporable_mm=rew,
+        total_evaporable_mm=rew + rng.choice([0.5, 10.0, 20.0], n_tiles),
     )
+    daily_lai = None
+    if style == 3:
+        daily_lai = leaf_area * rng.uniform(0.0, 1.5, shape)
+        daily_lai[rng.random(shape) < 0.1] = 0.0
     n_years = min(n_years, n_days)
     cuts = (
         np.sort(rng.choice(np.arange(1, n_days), n_years - 1, replace=False)) if n_years > 1 else []
@@ -50,7 +71,7 @@ def make_case(seed: int, n_days: int, n_tiles: int, n_years: int) -> Case:
     year_index = np.zeros(n_days, dtype=np.int64)
     for cut in cuts:
         year_index[cut:] += 1
-    return Case(rain, wet, dry, soil, params, year_index)
+    return Case(rain, wet, dry, soil, params, year_index, daily_lai)
 
 
 @st.composite

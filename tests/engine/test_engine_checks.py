@@ -91,6 +91,47 @@ def test_saturating_storm_close_to_gash_analytical_model():
     assert throughfall == pytest.approx(storm - loss)
 
 
+@pytest.mark.parametrize(
+    ("storm_mm", "gash_1995_mm"), [(1.0, 0.600), (5.0, 1.613), (10.0, 2.363), (30.0, 5.363)]
+)
+def test_sparse_canopy_close_to_gash_lloyd_lachaud_1995(storm_mm, gash_1995_mm):
+    # Sparse-canopy Gash model (Gash, Lloyd & Lachaud 1995) with c = 0.6, S = 1.0 mm per
+    # ground area, E/R = 0.15 per ground area (Ec/R = 0.25 per covered area), p_t = 0:
+    # P'G = 1.9179 mm; I = c P_G below P'G, c P'G + c (Ec/R)(P_G - P'G) above (values
+    # recomputed from the published equations, C). Our daily form evaporates at the full rate
+    # from the first drop, which adds about c Sc (Ec/R)/2 = 0.13 mm to a saturating storm
+    # (derived by us, C); small storms agree exactly. Gash lets the canopy dry after every
+    # storm; a 20-h storm leaves part of the store for the next day, so loss + store counts.
+    rate_mm_h = 1.5
+    wet_per_cover_mm_d = 0.25 * rate_mm_h * 24.0
+    loss, throughfall, store = kernels.sparse_canopy_day(
+        storm_mm, wet_per_cover_mm_d, 0.6, 1.0, 1.0 / rate_mm_h, 0.0
+    )
+    assert loss + store == pytest.approx(gash_1995_mm, abs=0.15)
+    assert loss + store >= gash_1995_mm - 1e-9
+    assert throughfall == pytest.approx(storm_mm - loss - store)
+
+
+def test_rain_on_the_open_share_falls_through():
+    # Gash, Lloyd & Lachaud (1995): free throughfall p = 1 - c. A 0.5 mm shower on a canopy
+    # covering 30 % of the ground in still, humid air (no evaporation): 70 % falls through at
+    # once, the covered 30 % is held on the leaves (capacity 1 mm per ground area).
+    loss, throughfall, store = kernels.sparse_canopy_day(0.5, 0.0, 0.3, 1.0, 1.0 / 1.5, 0.0)
+    assert loss == 0.0
+    assert throughfall == pytest.approx(0.35)
+    assert store == pytest.approx(0.15)
+
+
+def test_cover_fraction_is_beers_law():
+    # c = 1 - exp(-k LAI) (Beer's law; Campbell & Norman 1998, from memory): a tile with LAI 2.88
+    # and k = 0.5 keeps 1 - c = exp(-1.44) = 23.7 % of the ground exposed, so it evaporates
+    # exactly that share of the exposed-share cap few·Kc,max·ETo (FAO-56 eq. 71; ours, C)
+    params = _bare_soil(leaf_area_index=[2.88], extinction_coefficient=0.5)
+    rain, wet, dry, soil, years = _days(0.0, dry=0.0, soil=4.0)
+    run = simulate_tiles(rain, wet, dry, soil, params, years, keep_daily=True)
+    assert run.daily["soil_evap_mm"][0, 0] == pytest.approx(math.exp(-1.44) * 4.0, rel=1e-12)
+
+
 def test_small_storm_is_all_intercepted_and_store_carries_over():
     # 0.5 mm on a dry canopy of 2 mm capacity, at night-like low evaporation: nothing falls
     # through; what does not evaporate stays on the canopy for the next day.
@@ -179,13 +220,76 @@ def test_drainage_after_evaporation_fao56_eq88():
     assert run.daily["drainage_mm"][0, 0] == pytest.approx(26.0)
 
 
-def test_soil_evaporation_falls_with_wetness():
-    # Kr = W/TAW (FAO-56 eq. 74 with TEW = TAW, REW = 0): a quarter-full store gives a quarter
-    rain, wet, dry, soil, years = _days(0.0, soil=2.0)
-    run = simulate_tiles(
-        rain, wet, dry, soil, _one_tile(initial_soil_fraction=0.25), years, keep_daily=True
+# --- surface layer for soil evaporation (FAO-56 chapter 7) ------------------------------------
+
+
+def _bare_soil(**overrides):
+    # no leaves: cover fraction 0, the whole ground exposed (few = 1); TEW 20 mm, REW 8 mm;
+    # CN 1 so that rain infiltrates entirely
+    values = dict(
+        leaf_area_index=[0.0],
+        curve_number=[1.0],
+        readily_evaporable_mm=8.0,
+        total_evaporable_mm=20.0,
+        initial_soil_fraction=1.0,
     )
-    assert run.daily["soil_evap_mm"][0, 0] == pytest.approx(0.5)
+    values.update(overrides)
+    return _one_tile(**values)
+
+
+def test_soil_evaporation_two_stages_fao56_eq74():
+    # Wet bare soil (De = 0), energy for 4 mm/d, no rain. Computed by us from FAO-56 eqs. 71,
+    # 74 and 77: stage 1 at the full 4 mm/d while De <= REW (days 1-3, De 4, 8, 12), then
+    # Kr = (TEW - De)/(TEW - REW): day 4 (20 - 12)/12 x 4 = 2.667 mm, day 5
+    # (20 - 14.667)/12 x 4 = 1.778 mm.
+    rain, wet, dry, soil, years = _days([0.0] * 5, soil=4.0)
+    run = simulate_tiles(rain, wet, dry, soil, _bare_soil(), years, keep_daily=True)
+    np.testing.assert_allclose(
+        run.daily["soil_evap_mm"][:, 0], [4.0, 4.0, 4.0, 8.0 / 3.0, 16.0 / 9.0], rtol=1e-12
+    )
+    np.testing.assert_allclose(
+        run.daily["surface_depletion_mm"][:, 0], [4.0, 8.0, 12.0, 44.0 / 3.0, 148.0 / 9.0]
+    )
+
+
+def test_rain_rewets_the_surface_layer():
+    # FAO-56 eq. 77: infiltration lowers De; the 10 mm of day 4 bring De from 12 to 2 mm, so
+    # day 4 evaporates at the full rate again (stage 1), computed by us.
+    rain, wet, dry, soil, years = _days([0.0, 0.0, 0.0, 10.0], soil=4.0)
+    run = simulate_tiles(rain, wet, dry, soil, _bare_soil(), years, keep_daily=True)
+    assert run.daily["soil_evap_mm"][3, 0] == pytest.approx(4.0)
+    assert run.daily["surface_depletion_mm"][3, 0] == pytest.approx(12.0 - 10.0 + 4.0)
+
+
+def test_soil_evaporation_limited_to_the_exposed_share_fao56_eq71():
+    # Canopy cover c = 1 - exp(-0.5 x 2 ln 4) = 0.75, so few = 0.25. Energy (Kc,max - Kcb)
+    # ETo = 3 mm/d, potential transpiration Kcb ETo = 2 mm/d: Ke ETo = min(Kr x 3,
+    # few x Kc,max ETo = 0.25 x 5) = 1.25 mm; the exposed quarter carries it, De rises by
+    # E/few = 5 mm (eqs. 71, 77; computed by us).
+    params = _bare_soil(leaf_area_index=[4.0 * np.log(2.0)], extinction_coefficient=0.5)
+    rain, wet, dry, soil, years = _days(0.0, dry=2.0, soil=3.0)
+    run = simulate_tiles(rain, wet, dry, soil, params, years, keep_daily=True)
+    assert run.daily["soil_evap_mm"][0, 0] == pytest.approx(1.25)
+    assert run.daily["surface_depletion_mm"][0, 0] == pytest.approx(5.0)
+
+
+def test_closed_canopy_has_no_soil_evaporation():
+    # c = 1 (no leaf area given: a closed canopy) leaves no soil exposed (few = 0, eq. 71)
+    rain, wet, dry, soil, years = _days(0.0, dry=2.0, soil=3.0)
+    run = simulate_tiles(rain, wet, dry, soil, _one_tile(), years, keep_daily=True)
+    assert run.daily["soil_evap_mm"][0, 0] == 0.0
+
+
+def test_surface_layer_holds_no_more_than_the_root_zone():
+    # The surface layer is part of the root zone (design rule, no source): a full 25 mm root
+    # zone (De = 0) that transpires 23 mm keeps 2 mm, so the layer can hold at most 2 mm of its
+    # 20 mm: De >= 18 mm, Kr = (20 - 18)/12 and soil evaporation = 5/6 mm (computed by us).
+    rain, wet, dry, soil, years = _days(0.0, dry=23.0, soil=5.0)
+    params = _bare_soil(root_zone_capacity_mm=[25.0], depletion_fraction=[0.0])
+    run = simulate_tiles(rain, wet, dry, soil, params, years, keep_daily=True)
+    assert run.daily["transpiration_mm"][0, 0] == pytest.approx(23.0)
+    assert run.daily["soil_evap_mm"][0, 0] == pytest.approx(5.0 / 6.0)
+    assert run.daily["soil_store_mm"][0, 0] == pytest.approx(2.0 - 5.0 / 6.0)
 
 
 def test_water_tile_can_yield_negative():
@@ -239,3 +343,29 @@ def test_bad_shapes_and_years_are_rejected():
         simulate_tiles(rain, wet, dry, soil, _one_tile(), np.array([0, 2]))
     with pytest.raises(ValueError, match=r"year_index\[0\] = 1"):
         simulate_tiles(rain, wet, dry, soil, _one_tile(), np.array([1, 1]))
+
+
+def test_bad_daily_leaf_area_is_reported():
+    rain, wet, dry, soil, years = _days([1.0, 2.0, 3.0])
+    params = _one_tile(leaf_area_index=[2.0], canopy_capacity_mm=[0.4])
+    lai = np.array([[2.0], [-1.0], [2.0]])
+    with pytest.raises(ValueError, match=r"lai\[day 1, tile 0\] = -1.0: expected a finite value"):
+        simulate_tiles(rain, wet, dry, soil, params, years, lai=lai)
+    with pytest.raises(ValueError, match=r"lai: shape \(2, 1\), expected \(3, 1\)"):
+        simulate_tiles(rain, wet, dry, soil, params, years, lai=lai[:2])
+
+
+def test_leaf_area_needed_for_a_canopy_store():
+    with pytest.raises(ValueError, match="leaf_area_index.*store scales with leaf area"):
+        _one_tile(leaf_area_index=[0.0], canopy_capacity_mm=[1.0])
+
+
+def test_store_follows_the_day_leaf_area():
+    # capacity 1.2 mm at LAI 6 is 0.2 mm per unit LAI (Dickinson 1984, from memory): on a day
+    # with LAI 3 the canopy holds 0.6 mm; closed cover (k large) so all rain meets the canopy
+    params = _one_tile(canopy_capacity_mm=[1.2], leaf_area_index=[6.0],
+                       extinction_coefficient=50.0)
+    rain, wet, dry, soil, years = _days(5.0)
+    run = simulate_tiles(rain, wet, dry, soil, params, years, lai=np.array([[3.0]]),
+                         keep_daily=True)
+    assert run.daily["canopy_store_mm"][0, 0] == pytest.approx(0.6)

@@ -25,7 +25,7 @@ def _case():
 
 
 def _args(case):
-    return (case.rain, case.wet, case.dry, case.soil, case.params, case.year_index)
+    return case.args
 
 
 def _assert_same_annual(run, expected):

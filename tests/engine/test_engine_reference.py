@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 import pytest
 from hypothesis import given, settings
@@ -14,12 +16,8 @@ from .reference import reference_run
 
 
 def _compare(case):
-    run = simulate_tiles(
-        case.rain, case.wet, case.dry, case.soil, case.params, case.year_index, keep_daily=True
-    )
-    daily, annual = reference_run(
-        case.rain, case.wet, case.dry, case.soil, case.params, case.year_index
-    )
+    run = simulate_tiles(*case.args, lai=case.lai, keep_daily=True)
+    daily, annual = reference_run(*case.args, lai=case.lai)
     for name, expected in daily.items():
         np.testing.assert_allclose(run.daily[name], expected, rtol=1e-9, atol=1e-9, err_msg=name)
     for name, expected in annual.items():
@@ -29,6 +27,7 @@ def _compare(case):
     np.testing.assert_allclose(
         run.daily_yield_mm, daily["quickflow_mm"] + daily["drainage_mm"], rtol=1e-9, atol=1e-9
     )
+    np.testing.assert_allclose(run.daily_drainage_mm, daily["drainage_mm"], rtol=1e-9, atol=1e-9)
 
 
 @settings(max_examples=60, deadline=None)
@@ -43,14 +42,19 @@ def test_reference_across_block_edges(n_tiles):
     _compare(make_case(seed=n_tiles, n_days=60, n_tiles=n_tiles, n_years=2))
 
 
-def test_fast_and_daily_kernels_agree():
-    case = make_case(seed=3, n_days=400, n_tiles=13, n_years=2)
-    args = (case.rain, case.wet, case.dry, case.soil, case.params, case.year_index)
-    fast, full = simulate_tiles(*args), simulate_tiles(*args, keep_daily=True)
+@pytest.mark.parametrize("seed", [3, 4, 6])
+def test_fast_and_daily_kernels_agree(seed):
+    case = make_case(seed=seed, n_days=400, n_tiles=13, n_years=2)
+    fast = simulate_tiles(*case.args, lai=case.lai)
+    routed = simulate_tiles(*case.args, lai=case.lai, keep_daily_drainage=True)
+    full = simulate_tiles(*case.args, lai=case.lai, keep_daily=True)
     assert fast.daily is None
+    assert fast.daily_drainage_mm is None
     np.testing.assert_array_equal(fast.daily_yield_mm, full.daily_yield_mm)
+    np.testing.assert_array_equal(routed.daily_drainage_mm, full.daily_drainage_mm)
     for name in kernels.ANNUAL_NAMES:
         np.testing.assert_array_equal(getattr(fast.annual, name), getattr(full.annual, name))
+        np.testing.assert_array_equal(getattr(routed.annual, name), getattr(full.annual, name))
 
 
 def test_py_func_runs_without_the_compiler():
@@ -61,11 +65,13 @@ def test_py_func_runs_without_the_compiler():
         kernels.curve_number_runoff(50.8, 63.5)
     )
     day = (
-        20.0,
-        4.0,
-        3.0,
-        0.5,
-        1.5,
+        20.0,  # rain
+        4.0,  # wet
+        3.0,  # dry
+        0.5,  # soil energy
+        2.88,  # lai
+        1.0 - math.exp(-0.5 * 2.88),  # cover
+        0.2,  # capacity per lai
         1 / 1.5,
         400.0,
         169.0,
@@ -73,16 +79,21 @@ def test_py_func_runs_without_the_compiler():
         150.0,
         1 / 150,
         1 / 75,
-        0.0,
+        19.0,  # TEW
+        1 / 10.0,  # 1 / (TEW - REW)
+        0.0,  # land
         0.2,
         100.0,
+        5.0,  # surface depletion
     )
     assert kernels.tile_day.py_func(*day) == pytest.approx(kernels.tile_day(*day))
     # the whole run through .py_func (its inner helpers stay compiled)
     case = make_case(seed=5, n_days=30, n_tiles=3, n_years=1)
-    from coveryield.engine.water_balance import _initial_state, _kernel_parameters
+    from coveryield.engine.water_balance import _cover_rows, _initial_state, _kernel_parameters
 
     outputs = []
+    lai = case.params.reference_lai().reshape(1, -1)
+    cover = _cover_rows(lai, case.params)
     for runner in (kernels.run_tiles, kernels.run_tiles.py_func):
         state = _initial_state(case.params)
         annual = np.zeros((8, 1, 3))
@@ -92,6 +103,9 @@ def test_py_func_runs_without_the_compiler():
             case.wet,
             case.dry,
             case.soil,
+            lai,
+            cover,
+            0,
             case.year_index,
             _kernel_parameters(case.params),
             state,

@@ -94,3 +94,25 @@ def test_weighted_column_sum_is_a_matrix_vector_product():
     weights = np.array([0.2, 0.0, 0.3, 0.0, 0.5, 0.0, 0.0])
     np.testing.assert_allclose(weighted_column_sum(values, weights), values @ weights,
                                rtol=0, atol=1e-12)
+
+
+def test_mix_and_route_matches_the_separate_steps():
+    # the fused share-change path gives the answer of the weighted sums, two linear stores and
+    # a monthly mean computed apart (design property)
+    from coveryield.engine.routing import mix_and_route, route_series, weighted_column_sum
+
+    rng = np.random.default_rng(5)
+    n_days = 800
+    drainage = np.asfortranarray(rng.gamma(0.5, 2.0, (n_days, 5)))
+    yields = np.asfortranarray(drainage + rng.gamma(0.3, 3.0, (n_days, 5)) - 0.5)
+    weights = np.array([0.3, 0.0, 0.2, 0.4, 0.1])
+    months = (np.arange(n_days) // 30) % 12 + 1
+    months[:10] = 0  # days left out of the monthly means
+    mixed, routed, monthly = mix_and_route(yields, drainage, weights, 2.0, 60.0, months)
+    y = weighted_column_sum(yields, weights)
+    d = weighted_column_sum(drainage, weights)
+    np.testing.assert_allclose(mixed, y, rtol=0, atol=1e-12)
+    expected = route_series(y - d, 2.0) + route_series(d, 60.0)
+    np.testing.assert_allclose(routed, expected, rtol=0, atol=1e-12)
+    for m in range(1, 13):
+        np.testing.assert_allclose(monthly[m - 1], expected[months == m].mean(), rtol=1e-12)

@@ -137,3 +137,18 @@ def test_zone_without_name_is_counted_from_one(write_plan, example_text):
         load_plan(path)
     assert "zones[2].name" in str(info.value)
     assert "counted from 1" in str(info.value)
+
+
+def test_optional_number_is_described_as_a_number(tmp_path):
+    # an optional numeric key (canopy_capacity_mm may be left out) still says "a number"
+    from coveryield.plans import plan_from_dict
+
+    data = {
+        "catchment": {"name": "x", "area_km2": 1.0, "latitude_deg": 0.0, "elevation_m": 0.0,
+                      "climate": str(tmp_path / "none.csv")},
+        "zones": [{"name": "a", "area_share": 1.0}],
+        "covers": {"p": {"base": "pasture", "canopy_capacity_mm": 20.0}},
+        "plans": {"current": {"a": {"pasture": 1.0}}},
+    }
+    with pytest.raises(PlanFileError, match=r"canopy_capacity_mm = 20.0: expected a number from 0"):
+        plan_from_dict(data, source=tmp_path / "plans.toml")
