@@ -70,13 +70,14 @@ def _compiled_path(n_days):
 def _daily_inputs(climate):
     """Take the date index and the columns the physics needs; one clear error if absent."""
     daily = climate.daily
-    missing = [c for c in REQUIRED_COLUMNS if c not in daily.columns]
-    if missing:
+    try:
+        columns = {c: daily[c].to_numpy(dtype=float) for c in REQUIRED_COLUMNS}
+    except KeyError:
+        missing = [c for c in REQUIRED_COLUMNS if c not in daily.columns]
         raise ClimateFileError(
             f"climate record lacks column(s) {', '.join(missing)}; "
             f"expected {', '.join(REQUIRED_COLUMNS)}"
-        )
-    columns = {c: daily[c].to_numpy(dtype=float) for c in REQUIRED_COLUMNS}
+        ) from None
     return daily.index, columns
 
 

@@ -1021,7 +1021,7 @@ def canopy_evaporation_dated(
 
 def _same_length(arrays, dates):
     """Return ``arrays`` if each is as long as ``dates``; else raise ValueError."""
-    n = np.shape(dates)[0] if np.ndim(dates) else 1
+    n = len(dates)
     if any(a.shape[0] != n for a in arrays):
         raise ValueError(f"inputs differ in length: {[a.shape[0] for a in arrays] + [n]}")
     return arrays
