@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+import warnings
 
 
 def add_parser(subparsers) -> None:
@@ -23,6 +24,12 @@ def add_parser(subparsers) -> None:
     parser.add_argument(
         "--force", action="store_true", help="replace earlier coveryield outputs in a non-empty DIR"
     )
+    parser.add_argument(
+        "--no-cache",
+        action="store_true",
+        help="simulate the tiles even if the tile cache holds them, and store nothing there "
+        "(see `coveryield cache`)",
+    )
     parser.set_defaults(run=run)
 
 
@@ -31,7 +38,13 @@ def run(args: argparse.Namespace) -> int:
     from coveryield.comparison import compare
     from coveryield.reports import comparison_table, write_outputs
 
-    result = compare(args.plan, progress=sys.stderr.isatty())
+    cache = None if args.no_cache else _tile_cache()
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        try:
+            result = compare(args.plan, progress=sys.stderr.isatty(), cache=cache)
+        finally:
+            print_warnings(caught)
     print(comparison_table(result))
     if args.out:
         out = write_outputs(result, args.out, force=args.force)
@@ -40,3 +53,21 @@ def run(args: argparse.Namespace) -> int:
             "crosscheck.csv, tiles.csv)"
         )
     return 0
+
+
+def _tile_cache():
+    from coveryield.tile_cache import TileCache
+
+    return TileCache()
+
+
+def print_warnings(caught) -> None:
+    """Print recorded warnings as plain lines on stderr: ``note:`` for the tile cache's."""
+    seen = set()
+    for warning in caught:
+        text = str(warning.message)
+        if text in seen:
+            continue
+        seen.add(text)
+        label = "note" if warning.category.__name__ == "TileCacheWarning" else "warning"
+        print(f"{label}: {text}", file=sys.stderr)
