@@ -18,7 +18,7 @@ Where
 -----
 ``$COVERYIELD_CACHE_DIR/tiles`` when that variable is set, else ``tiles`` in the user's cache
 folder (``platformdirs.user_cache_dir("coveryield")``: ``~/.cache/coveryield`` on Linux,
-``~/Library/Caches/coveryield`` on macOS, ``%LOCALAPPDATA%\\coveryield\\Cache`` on Windows).
+``~/Library/Caches/coveryield`` on macOS, ``%LOCALAPPDATA%\coveryield\Cache`` on Windows).
 Nothing is ever written next to a user's data. ``coveryield cache`` shows the folder and its
 size; ``coveryield cache --clear`` empties it; ``coveryield compare --no-cache`` neither reads
 nor writes it.
