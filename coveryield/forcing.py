@@ -181,6 +181,11 @@ def canopy_wind_terms(station_wind_height_m, canopy_height_m):
     inv_ra_per_wind : float
         1 / (ra u) at the reference height (FAO-56 eq. 4, ra is inversely proportional to
         the wind u there) [-].
+
+    References
+    ----------
+    FAO-56 (Allen et al. 1998), eq. 4 and its notes (d = 2/3 h, z0m = 0.123 h); Wieringa (1986)
+    for the blending height (see :mod:`coveryield.physics.wind`).
     """
     z_ref = reference_height(canopy_height_m)
     wind_factor = wind_above_canopy(1.0, station_wind_height_m, canopy_height_m, z_ref)

@@ -984,8 +984,8 @@ def canopy_evaporation_dated(
     min_wind_ms : float
         Station wind used at least [m s-1].
     dry_mm, wet_mm : numpy.ndarray of float64, optional
-        Contiguous arrays to fill (e.g. two columns of a Fortran-ordered table); new ones when
-        omitted.
+        Contiguous arrays to fill (e.g. two columns of a Fortran-ordered table), sharing no
+        memory with the inputs; new ones when omitted.
 
     Returns
     -------
