@@ -288,7 +288,10 @@ def cover_evaporation(climate, cover, et0_mm=None):
     index, col = _daily_inputs(climate)
     site = climate.site
     compiled = _compiled_path(len(index))
-    rates = np.empty((len(index), len(EVAPORATION_COLUMNS)), order="F")  # columns contiguous
+    # columns contiguous (Fortran order); np.empty reuses freed memory where np.zeros would
+    # take fresh pages from the system, whose first writes cost more than filling a column
+    rates = np.empty((len(index), len(EVAPORATION_COLUMNS)), order="F")
+    rates[:, 2] = 0.0  # bare soil: none unless a branch below sets it
     if cover.is_water:
         water = open_water_evaporation(
             col["tmax_c"],
@@ -304,11 +307,9 @@ def cover_evaporation(climate, cover, et0_mm=None):
         )
         rates[:, 0] = water
         rates[:, 1] = water
-        rates[:, 2] = 0.0
         np.maximum(rates, 0.0, out=rates)  # dew is not evaporation (NaN stays NaN)
     else:
         _canopy_rates(index, col, site, cover, rates, compiled)
-        rates[:, 2] = 0.0
         if cover.kc_calendar is not None:
             et0 = (
                 reference_et(climate).to_numpy()

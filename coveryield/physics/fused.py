@@ -13,7 +13,7 @@ single numba loop:
   by year with slices of the table, any other dates day by day. Nothing per day is built in
   pandas or Python;
 * each day's three saturation exponentials (at Tmax, Tmin and Tmean) use a branch-free
-  polynomial (:func:`_exp_poly`, relative error below 2e-14), so the day loop vectorizes (numba
+  polynomial (:func:`_exp_poly`, relative error below 3e-14), so the day loop vectorizes (numba
   offers no vector exp without Intel's SVML); the rare days whose exponent falls outside the
   polynomial's range, or is NaN, are redone with ``math.exp`` in a second loop;
 * the output array first holds each day's 1/Rso, then the day loop replaces it with the result:
@@ -229,26 +229,24 @@ def day_of_year_kernel(dates, units_per_day):  # pragma: no cover - compiled
 
 # ----------------------------------------------------------------------------- saturation terms
 
-#: Inverse factorials 1/k!, k = 0..11, the Taylor coefficients of exp.
-_TAYLOR = tuple(1.0 / math.factorial(k) for k in range(12))
+#: Inverse factorials 1/k!, k = 0..9, the Taylor coefficients of exp.
+_TAYLOR = tuple(1.0 / math.factorial(k) for k in range(10))
 #: Exponents 17.27 T / (T + 237.3) inside this range use the polynomial exp (T from about
-#: -110 to +130 °C); others, rare, are recomputed with math.exp [-].
-EXP_ARG_MIN, EXP_ARG_MAX = -16.0, 8.0
+#: -75 to +96 °C, beyond any accepted climate record); others are recomputed with math.exp [-].
+EXP_ARG_MIN, EXP_ARG_MAX = -8.0, 5.0
 #: Floating-point freedoms the compiler may use (no "nnan"/"ninf": NaN still propagates).
 _FASTMATH = {"contract", "arcp", "nsz", "reassoc"}
 
 
 @njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")
 def _exp_poly(x):  # pragma: no cover - compiled
-    """exp(x) for -16 <= x <= 8 as (Taylor polynomial of exp(x/64), degree 11)^64.
+    """exp(x) for -8 <= x <= 5 as (Taylor polynomial of exp(x/64), degree 9)^64.
 
-    Relative error below 2e-14 (tested against math.exp); branch-free, so the day loop
+    Relative error below 3e-14 (tested against math.exp); branch-free, so the day loop
     vectorizes where a call to the C library exp would not.
     """
     y = x * 0.015625
-    p = _TAYLOR[11]
-    p = p * y + _TAYLOR[10]
-    p = p * y + _TAYLOR[9]
+    p = _TAYLOR[9]
     p = p * y + _TAYLOR[8]
     p = p * y + _TAYLOR[7]
     p = p * y + _TAYLOR[6]
@@ -353,9 +351,11 @@ def _reference_day(
     vpd = es - ea
     vpd = vpd if vpd > vpd_floor else vpd_floor
     rn = _net_radiation(tmax, tmin, ea, rs, inv_rso, REFERENCE_ALBEDO, sigma, rs_rso_lower)
-    return (
-        RADIATION_TO_EVAPORATION_MM_PER_MJ * delta * rn + gamma * cn / (tmean + 273.0) * u2 * vpd
-    ) / (delta + gamma * (1.0 + cd * u2))  # FAO-56 eq. 6, G = 0
+    t_kelvin = tmean + 273.0
+    # FAO-56 eq. 6, G = 0, multiplied through by T + 273: one division for both denominators
+    return (RADIATION_TO_EVAPORATION_MM_PER_MJ * delta * rn * t_kelvin + gamma * cn * u2 * vpd) / (
+        t_kelvin * (delta + gamma * (1.0 + cd * u2))
+    )
 
 
 @njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")
@@ -616,14 +616,17 @@ def _canopy_day(
     rn = _net_radiation(tmax, tmin, ea, rs, inv_rso, albedo, STEFAN_BOLTZMANN_FAO56, -np.inf)
     wind = min_wind if wind < min_wind else wind  # calm air: ra would be infinite; NaN stays
     inv_ra = wind * wind_factor * inv_ra_per_wind  # 1 / ra, FAO-56 eq. 4 above the canopy
-    rho = AIR_DENSITY_FACTOR * (pressure - 0.378 * ea) / (tmean + KELVIN_OFFSET_K)  # Annex 3
-    numerator = (
-        delta * rn + SECONDS_PER_DAY * rho * SPECIFIC_HEAT_AIR_MJ_PER_KG_C * (es - ea) * inv_ra
-    )
-    dry = numerator / (
-        LATENT_HEAT_MJ_PER_KG * (delta + gamma * (1.0 + rs_s_per_m * inv_ra))
-    )  # FAO-56 eq. 3, the cover's rs
-    wet = numerator / (LATENT_HEAT_MJ_PER_KG * (delta + gamma))  # FAO-56 eq. 3, rs = 0
+    t_kelvin = tmean + KELVIN_OFFSET_K
+    rho_t = AIR_DENSITY_FACTOR * (pressure - 0.378 * ea)  # rho_a (T + 273.16), Annex 3 eq. 3-5
+    dry_denominator = delta + gamma * (1.0 + rs_s_per_m * inv_ra)  # the cover's rs
+    wet_denominator = delta + gamma  # rs = 0
+    # FAO-56 eq. 3 multiplied through by T + 273.16; one division for all three denominators
+    ratio = (
+        delta * rn * t_kelvin
+        + SECONDS_PER_DAY * rho_t * SPECIFIC_HEAT_AIR_MJ_PER_KG_C * (es - ea) * inv_ra
+    ) / (t_kelvin * dry_denominator * wet_denominator * LATENT_HEAT_MJ_PER_KG)
+    dry = wet_denominator * ratio  # FAO-56 eq. 3, the cover's rs
+    wet = dry_denominator * ratio  # FAO-56 eq. 3, rs = 0
     dry = 0.0 if dry < 0.0 else dry  # dew is not evaporation (NaN stays NaN)
     wet = 0.0 if wet < 0.0 else wet
     return dry, wet
