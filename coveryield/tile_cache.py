@@ -273,7 +273,8 @@ def cached_simulation(plan_file, cache: TileCache | None, *, progress: bool = Fa
     Notes
     -----
     On a hit, the warnings raised when the tiles were simulated are raised again; plans whose
-    shares are new to the entry are mixed and the entry is rewritten with them.
+    shares are new to the entry are mixed and the entry is rewritten with the mixes of the
+    file's plans.
     """
     from coveryield import catchment
 
@@ -293,7 +294,7 @@ def cached_simulation(plan_file, cache: TileCache | None, *, progress: bool = Fa
         cache.store(key, entry)
     else:
         mixes = _plan_mixes(plan_file, entry.tiles, entry.mixes)
-        if len(mixes) > len(entry.mixes):
+        if not mixes.keys() <= entry.mixes.keys():  # shares new to the entry: keep theirs
             entry = dataclasses.replace(entry, mixes=mixes)
             cache.store(key, entry)
     _raise_again(entry.raised)
@@ -301,14 +302,19 @@ def cached_simulation(plan_file, cache: TileCache | None, *, progress: bool = Fa
 
 
 def _plan_mixes(plan_file, tiles, known: dict) -> dict:
-    """``known`` plus the mixed results of every plan of the file not in it yet."""
+    """Mixed results of every plan of the file, taken from ``known`` where it has them.
+
+    Mixes of shares no longer in the file are dropped, so an entry does not grow while plans
+    are edited.
+    """
     from coveryield.catchment import mix_tiles
 
-    mixes = dict(known)
+    mixes = {}
     for shares in plan_file.plans.values():
         weights = tiles.weights(shares)
-        if tuple(weights) not in mixes:
-            mixes[tuple(weights)] = mix_tiles(tiles, weights)
+        key = tuple(weights)
+        if key not in mixes:
+            mixes[key] = known[key] if key in known else mix_tiles(tiles, weights)
     return mixes
 
 

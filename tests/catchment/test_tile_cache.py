@@ -149,6 +149,18 @@ def test_new_shares_reuse_the_tiles_and_add_their_mix_to_the_entry(tmp_path, cac
     monkeypatch.setattr(catchment, "mix_tiles", _forbidden)
     monkeypatch.setattr(comparison, "mix_tiles", _forbidden)
     coveryield.compare(more, cache=cache)  # the new mix was stored with the entry
+    monkeypatch.undo()
+    fewer = write_plan(tmp_path / "a")  # "half" gone again: nothing new, entry unchanged
+    coveryield.compare(fewer, cache=cache)
+    entry = cache.load(cache.key(coveryield.load_plan(fewer)))
+    assert len(entry.mixes) == 3  # current, plant-hill, half
+    edited = write_plan(
+        tmp_path / "a", extra_plan='[plans.third]\nhill = { pasture = 0.2, forest = 0.8 }\n'
+        'flat = { pasture = 1.0 }'
+    )
+    coveryield.compare(edited, cache=cache)
+    entry = cache.load(cache.key(coveryield.load_plan(edited)))
+    assert len(entry.mixes) == 3  # current, plant-hill, third: the stale "half" was dropped
 
 
 def _forbidden(*args, **kwargs):
