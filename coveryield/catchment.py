@@ -18,14 +18,12 @@ the net loss of ponds and lakes in a dry summer draws down the baseflow).
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
 from coveryield.climate import Climate, read_climate
-from coveryield.engine.kernels import ANNUAL_NAMES
-from coveryield.engine.routing import mix_and_route, mm_per_day_to_m3_per_s
-from coveryield.engine.water_balance import TileParameters, simulate_tiles
 from coveryield.errors import PlanFileError
 from coveryield.forcing import cover_evaporation, reference_et
 from coveryield.physics.curves import (
@@ -35,6 +33,19 @@ from coveryield.physics.curves import (
     zhang_evaporation,
 )
 from coveryield.plans import PlanFile
+
+if TYPE_CHECKING:
+    from coveryield.engine.water_balance import TileParameters
+
+# The engine (numba, ~0.15 s to load) is imported where it runs, never at import: a comparison
+# read from the tile cache needs neither the daily loop nor, for the file's plans, the routing.
+
+
+def simulate_tiles(*args, **kwargs):
+    """Run the engine's daily loop: :func:`coveryield.engine.water_balance.simulate_tiles`."""
+    from coveryield.engine.water_balance import simulate_tiles as daily_loop
+
+    return daily_loop(*args, **kwargs)
 
 
 @dataclass(frozen=True)
@@ -192,6 +203,8 @@ def mix_tiles(tiles: TileResults, weights: np.ndarray) -> MixedSeries:
     MixedSeries
         Catchment results [mm over the catchment; flow in m3 s-1].
     """
+    from coveryield.engine.routing import mix_and_route, mm_per_day_to_m3_per_s
+
     annual = {name: values @ weights for name, values in tiles.annual.items()}
     daily_yield, routed_mm, monthly_routed_mm = mix_and_route(
         tiles.daily_yield_mm,
@@ -298,6 +311,8 @@ def tile_parameters(plan_file: PlanFile, tiles: list[tuple[str, str]]) -> TilePa
         water flag, rain intensity [mm h-1], and the surface layer's REW and TEW from the zone's
         soil texture [mm] (FAO-56 Table 19).
     """
+    from coveryield.engine.water_balance import TileParameters
+
     zones = {zone.name: zone for zone in plan_file.zones}
     covers = [plan_file.covers[cover] for _, cover in tiles]
     soils = [zones[zone] for zone, _ in tiles]
@@ -355,6 +370,8 @@ def simulate_catchment(
         Compact results of every tile, ready for :func:`mix_tiles`.
     """
     from tqdm.auto import tqdm
+
+    from coveryield.engine.kernels import ANNUAL_NAMES
 
     climates = zone_climates(plan_file, climate)
     cover_names = plan_file.covers_used()

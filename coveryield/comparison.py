@@ -265,11 +265,15 @@ class Comparison:
         The catchment, zones, covers and plans.
     tiles : TileResults
         Every tile simulated once (see :func:`coveryield.catchment.simulate_catchment`).
+    mixes : dict, optional
+        Tile weights (a tuple, see :meth:`TileResults.weights`) -> :class:`MixedSeries` already
+        computed for them (e.g. read from the tile cache); other weights are mixed on demand.
     """
 
-    def __init__(self, plan_file: PlanFile, tiles: TileResults):
+    def __init__(self, plan_file: PlanFile, tiles: TileResults, mixes: dict | None = None):
         self.plan_file = plan_file
         self.tiles = tiles
+        self._mixes = dict(mixes or {})
         rain = pd.Series(
             tiles.annual["rain_mm"] @ tiles.weights(plan_file.plans["current"]), index=tiles.years
         )
@@ -338,7 +342,10 @@ class Comparison:
         return self._outcome_of(name, shares)
 
     def _outcome_of(self, name: str, shares: dict) -> PlanOutcome:
-        mixed: MixedSeries = mix_tiles(self.tiles, self.tiles.weights(shares))
+        weights = self.tiles.weights(shares)
+        mixed: MixedSeries | None = self._mixes.get(tuple(weights))
+        if mixed is None:
+            mixed = mix_tiles(self.tiles, weights)
         months = pd.RangeIndex(1, 13, name="month")
         flow = mixed.flow_m3s
         threshold = self.plan_file.catchment.low_flow_m3s
@@ -617,7 +624,9 @@ class Comparison:
         }
 
 
-def compare(plan: PlanFile | str | PathLike, *, progress: bool = False) -> Comparison:
+def compare(
+    plan: PlanFile | str | PathLike, *, progress: bool = False, cache=None
+) -> Comparison:
     """Compare every plan of a plan file.
 
     Parameters
@@ -626,6 +635,10 @@ def compare(plan: PlanFile | str | PathLike, *, progress: bool = False) -> Compa
         A loaded plan file or the path of a TOML plan file.
     progress : bool
         Show progress on stderr while tiles are prepared.
+    cache : coveryield.tile_cache.TileCache or bool, optional
+        Take the tile results from this on-disk cache when it holds them for exactly these
+        inputs, else simulate and store them there. True uses the default cache folder; None or
+        False (the default) neither reads nor writes a cache.
 
     Returns
     -------
@@ -638,4 +651,10 @@ def compare(plan: PlanFile | str | PathLike, *, progress: bool = False) -> Compa
         For a malformed plan or climate file.
     """
     plan_file = plan if isinstance(plan, PlanFile) else load_plan(plan)
-    return Comparison(plan_file, simulate_catchment(plan_file, progress=progress))
+    if not cache:
+        return Comparison(plan_file, simulate_catchment(plan_file, progress=progress))
+    from coveryield.tile_cache import TileCache, cached_simulation
+
+    cache = TileCache() if cache is True else cache
+    tiles, mixes = cached_simulation(plan_file, cache, progress=progress)
+    return Comparison(plan_file, tiles, mixes)

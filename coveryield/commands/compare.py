@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+import warnings
 
 from coveryield.commands.out_option import add_out_arguments, checked_out_folder
 
@@ -18,6 +19,12 @@ def add_parser(subparsers) -> None:
     )
     parser.add_argument("plan", metavar="PLAN.toml", help="plan file (TOML)")
     add_out_arguments(parser, "report.html, annual.csv, summary.json and more tables")
+    parser.add_argument(
+        "--no-cache",
+        action="store_true",
+        help="simulate the tiles even if the tile cache holds them, and store nothing there "
+        "(see `coveryield cache`)",
+    )
     parser.set_defaults(run=run)
 
 
@@ -30,7 +37,13 @@ def run(args: argparse.Namespace) -> int:
 
     plan_file = load_plan(args.plan)
     target = checked_out_folder(args, OUTPUT_FILES, plan_file.input_files())
-    result = compare(plan_file, progress=sys.stderr.isatty())
+    cache = None if args.no_cache else _tile_cache()
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        try:
+            result = compare(plan_file, progress=sys.stderr.isatty(), cache=cache)
+        finally:
+            print_warnings(caught)
     print(comparison_table(result))
     if target is not None:
         out = write_outputs(result, target)
@@ -39,3 +52,21 @@ def run(args: argparse.Namespace) -> int:
             f"(each listed with its checksum in {MANIFEST_NAME})"
         )
     return 0
+
+
+def _tile_cache():
+    from coveryield.tile_cache import TileCache
+
+    return TileCache()
+
+
+def print_warnings(caught) -> None:
+    """Print recorded warnings as plain lines on stderr: ``note:`` for the tile cache's."""
+    seen = set()
+    for warning in caught:
+        text = str(warning.message)
+        if text in seen:
+            continue
+        seen.add(text)
+        label = "note" if warning.category.__name__ == "TileCacheWarning" else "warning"
+        print(f"{label}: {text}", file=sys.stderr)
