@@ -21,3 +21,7 @@ class PlanFileError(CoveryieldError, ValueError):
 
 class OutputError(CoveryieldError, OSError):
     """An output could not be written (for example the target exists and would be overwritten)."""
+
+
+class BatchError(CoveryieldError, ValueError):
+    """A batch cannot start: no plan files, an unsuitable output folder, no reachable cluster."""
