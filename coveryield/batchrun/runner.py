@@ -82,7 +82,7 @@ class BatchRun:
         rows = f"; {len(self.table)} rows in {self.out / 'batch.csv'}" if self.out else ""
         workers = f"{self.n_workers} worker{'s' * (self.n_workers != 1)}"
         return (
-            f"batch: {done} of {self.n_files} catchments done ({self.n_ran} run, "
+            f"batch: {done} of {self.n_files} catchments done ({self.n_ran} run now, "
             f"{self.n_skipped} already complete), {n_failed} failed{where}{rows}; "
             f"{self.seconds:.1f} s on {workers}"
         )
