@@ -92,22 +92,11 @@ def single_compare_s(plan: Path, scratch: Path, repeats: int = 3) -> float:
 
 
 def timed_batch(plans: list[Path], out: Path, n_workers: int) -> dict:
-    """Start a local cluster, run the batch on it, read the workers' numba statistics."""
-    from distributed import Client, LocalCluster
-
-    from coveryield.batchrun.runner import run_batch
+    """Start a local cluster as the batch command does, run the batch, read numba's statistics."""
+    from coveryield.batchrun.runner import dask_client, run_batch
 
     start = time.perf_counter()
-    with (
-        LocalCluster(
-            n_workers=n_workers,
-            threads_per_worker=1,
-            processes=True,
-            dashboard_address=None,
-            silence_logs=40,
-        ) as cluster,
-        Client(cluster) as client,
-    ):
+    with dask_client(workers=n_workers, n_tasks=len(plans)) as client:
         client.wait_for_workers(n_workers)
         started_s = time.perf_counter() - start
         driver_cpu_s = time.process_time()
