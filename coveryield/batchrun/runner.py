@@ -57,7 +57,8 @@ class BatchRun:
     seconds : float
         Wall time of the whole batch [s].
     n_workers : int
-        Dask workers when the tasks were submitted (0 when nothing needed running).
+        Dask workers at the start or at the end of the tasks, whichever were more (0 when
+        nothing needed running).
     task_seconds : list of float
         Wall time of each catchment's task on its worker [s].
     out : pathlib.Path or None
@@ -89,13 +90,13 @@ class BatchRun:
 
 
 def _plan_paths(
-    paths: str | os.PathLike | Iterable[str | os.PathLike],
+    paths: str | os.PathLike | Iterable[str | os.PathLike], skip: Path | None
 ) -> tuple[list[Path], Path | None]:
     """Plan files from a folder (searched like the command does) or from a list of files."""
     if isinstance(paths, (str, os.PathLike)):
         single = Path(paths).expanduser()
         if single.is_dir():
-            return layout.find_plan_files(single), single
+            return layout.find_plan_files(single, skip=skip), single
         return [single], None
     listed = [Path(p).expanduser() for p in paths]
     if not listed:
@@ -325,9 +326,9 @@ def run_batch(
         scheduler.
     """
     start = time.perf_counter()
-    plan_paths, folder = _plan_paths(paths)
-    names = layout.output_names(plan_paths, Path(root) if root is not None else folder)
     out_dir = layout.check_out(out, resume=resume) if out is not None else None
+    plan_paths, folder = _plan_paths(paths, skip=out_dir)
+    names = layout.output_names(plan_paths, Path(root) if root is not None else folder)
     state = _Batch(plan_paths, names, out_dir)
     if resume and out_dir is not None:
         state.keep_finished()
@@ -346,6 +347,8 @@ def run_batch(
                 layout.sweep_leftovers(out_dir, [names[i] for i in todo])
             n_workers = len(dask.scheduler_info().get("workers", {}))
             _run_tasks(state, dask, todo, progress)
+            # a cluster that scales (e.g. dask-jobqueue) may have gained workers meanwhile
+            n_workers = max(n_workers, len(dask.scheduler_info().get("workers", {})))
     table, failed = state.tables()
     if out_dir is not None:
         layout.create_out(out_dir)
