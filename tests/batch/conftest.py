@@ -62,7 +62,7 @@ def good_dir(tmp_path):
     return make_batch_folder(tmp_path / "catchments", broken=False)
 
 
-@pytest.fixture(scope="session")
+@pytest.fixture(scope="module")
 def threads_client():
     """An in-process Dask cluster: quick to start, and tests can patch what its tasks run.
 
