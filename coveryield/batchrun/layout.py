@@ -239,7 +239,10 @@ def write_catchment(result, target: Path) -> Path:
             f"{', '.join(_expected_files())} (move the others away)"
         )
     aside = target.with_name(f".{target.name}.replaced-{uuid.uuid4().hex[:8]}")
-    os.rename(target, aside)
+    try:
+        os.rename(target, aside)
+    except OSError as exc:
+        raise OutputError(f"{target}: cannot be replaced ({exc.strerror})") from None
     try:
         write_outputs(result, target)
     except BaseException:
