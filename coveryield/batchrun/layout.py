@@ -147,10 +147,12 @@ def write_record(out: Path, catchments: dict[str, dict[str, str]]) -> None:
 # ---- completeness ------------------------------------------------------------------------------
 
 
-def _expected_files() -> tuple[str, ...]:
-    from coveryield.reports import OUTPUT_FILES
+def catchment_files() -> tuple[str, ...]:
+    """Names of the files ``compare --out`` writes (with the folder's manifest, if it keeps one)."""
+    from coveryield import reports
 
-    return tuple(OUTPUT_FILES)
+    manifest = getattr(reports, "MANIFEST_NAME", None)
+    return (*reports.OUTPUT_FILES, *([manifest] if manifest else []))
 
 
 def read_summary(folder: Path) -> dict[str, Any] | None:
@@ -161,7 +163,7 @@ def read_summary(folder: Path) -> dict[str, Any] | None:
     """
     if not folder.is_dir():
         return None
-    for name in _expected_files():
+    for name in catchment_files():
         file = folder / name
         if not file.is_file() or file.stat().st_size == 0:
             return None
@@ -180,7 +182,7 @@ def read_summary(folder: Path) -> dict[str, Any] | None:
 
 
 def _holds_only_ours(folder: Path) -> bool:
-    ours = set(_expected_files())
+    ours = set(catchment_files())
     return all(entry.is_file() and entry.name in ours for entry in folder.iterdir())
 
 
@@ -236,7 +238,7 @@ def write_catchment(result, target: Path) -> Path:
     if not target.is_dir() or not _holds_only_ours(target):
         raise OutputError(
             f"{target}: holds files coveryield did not write; expected only "
-            f"{', '.join(_expected_files())} (move the others away)"
+            f"{', '.join(catchment_files())} (move the others away)"
         )
     aside = target.with_name(f".{target.name}.replaced-{uuid.uuid4().hex[:8]}")
     try:

@@ -11,7 +11,6 @@ import coveryield
 from coveryield.batchrun import layout
 from coveryield.batchrun.rows import REQUIRED_COLUMNS, batch_table, summary_rows
 from coveryield.errors import BatchError, OutputError
-from coveryield.reports import OUTPUT_FILES
 
 from .conftest import make_batch_folder
 
@@ -99,7 +98,7 @@ def test_out_must_be_new_empty_or_an_earlier_batch(tmp_path):
 
 def test_a_folder_is_complete_only_with_every_file_and_a_readable_summary(alpha, tmp_path):
     target = layout.write_catchment(alpha, tmp_path / "alpha")
-    assert sorted(p.name for p in target.iterdir()) == sorted(OUTPUT_FILES)
+    assert sorted(p.name for p in target.iterdir()) == sorted(layout.catchment_files())
     assert layout.read_summary(target)["catchment"]["name"] == "Alpha Creek"
     (target / "summary.json").write_text('{"catchment": {"name": "Alpha')
     assert layout.read_summary(target) is None
