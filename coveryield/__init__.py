@@ -30,6 +30,7 @@ _API = {
     "PlanFile": "coveryield.plans",
     "compare": "coveryield.comparison",
     "Comparison": "coveryield.comparison",
+    "batch": "coveryield.batchrun.runner",
     "demo_plan_path": "coveryield.demo",
     "CoveryieldError": "coveryield.errors",
     "ClimateFileError": "coveryield.errors",

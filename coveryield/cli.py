@@ -15,6 +15,7 @@ import sys
 #: Sub-command name -> module under coveryield.commands (imported lazily).
 COMMANDS = {
     "cache": "cache",
+    "batch": "batch",
     "climate": "climate",
     "compare": "compare",
     "covers": "covers",

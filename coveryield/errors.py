@@ -25,3 +25,7 @@ class OutputError(CoveryieldError, OSError):
 
 class MissingExtraError(CoveryieldError, ImportError):
     """An optional part of coveryield is used without its extra packages installed."""
+
+
+class BatchError(CoveryieldError, ValueError):
+    """A batch cannot start: no plan files, an unsuitable output folder, no reachable cluster."""
