@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from coveryield.adjustments import adjusted_cover
 from coveryield.climate import Climate, read_climate
 from coveryield.engine.kernels import ANNUAL_NAMES
 from coveryield.engine.routing import (
@@ -249,18 +250,20 @@ def tile_parameters(plan_file: PlanFile, tiles: list[tuple[str, str]]) -> TilePa
     -------
     TileParameters
         Canopy capacity [mm], root-zone capacity = rooting depth x 1000 x available water
-        capacity [mm] (FAO-56 eq. 82), depletion fraction [-], curve number of the zone's soil
-        group [-], water flag, rain intensity [mm h-1].
+        capacity [mm] (FAO-56 eq. 82) times the plan file's ``root_zone_factor``, depletion
+        fraction [-], curve number of the zone's soil group [-], water flag, rain intensity
+        [mm h-1].
     """
     zones = {zone.name: zone for zone in plan_file.zones}
     covers = [plan_file.covers[cover] for _, cover in tiles]
     soils = [zones[zone] for zone, _ in tiles]
     n = len(tiles)
+    taw_factor = plan_file.adjustments.root_zone_factor
     return TileParameters(
         canopy_capacity_mm=np.array([c.canopy_capacity_mm for c in covers]),
         root_zone_capacity_mm=np.array(
             [
-                1000.0 * c.rooting_depth_m * z.awc_m3_per_m3
+                taw_factor * 1000.0 * c.rooting_depth_m * z.awc_m3_per_m3  # FAO-56 eq. 82
                 for c, z in zip(covers, soils, strict=True)
             ]
         ),
@@ -284,6 +287,61 @@ def complete_years(dates: pd.DatetimeIndex) -> np.ndarray:
     return counts.index[counts.to_numpy() == lengths].to_numpy()
 
 
+def plan_tiles(plan_file: PlanFile) -> list[tuple[str, str]]:
+    """Every tile a plan file needs: each zone x each cover used by any plan, zone-major."""
+    cover_names = plan_file.covers_used()
+    return [(zone.name, cover) for zone in plan_file.zones for cover in cover_names]
+
+
+def tile_forcing(
+    plan_file: PlanFile,
+    climates: dict[str, Climate],
+    et0_by_zone: dict[str, np.ndarray],
+    tiles: list[tuple[str, str]],
+    *,
+    out: tuple[np.ndarray, ...] | None = None,
+    progress: bool = False,
+) -> tuple[np.ndarray, ...]:
+    """Rain and the potential evaporation rates of every tile, time-major for the engine.
+
+    Parameters
+    ----------
+    plan_file : PlanFile
+        Covers and adjustments (the surface-resistance factor is applied here).
+    climates : dict of str -> Climate
+        Each zone's climate (see :func:`zone_climates`).
+    et0_by_zone : dict of str -> numpy.ndarray
+        Each zone's FAO-56 reference evaporation [mm d-1].
+    tiles : list of (str, str)
+        (zone, cover) per tile.
+    out : tuple of 4 numpy.ndarray, optional
+        Arrays (or column views) of shape (n_days, n_tiles) to fill instead of new ones.
+    progress : bool
+        Show a progress bar on stderr.
+
+    Returns
+    -------
+    rain_mm, wet_mm, dry_mm, soil_mm : numpy.ndarray
+        Each (n_days, n_tiles) [mm d-1]: gross rain, wet-canopy, dry-canopy and bare-soil
+        potential evaporation (see :func:`coveryield.forcing.cover_evaporation`).
+    """
+    from tqdm.auto import tqdm
+
+    n_days = len(next(iter(climates.values())).daily.index)
+    rain, wet, dry, soil = out or tuple(np.empty((n_days, len(tiles))) for _ in range(4))
+    for k, (zone, cover_name) in enumerate(
+        tqdm(tiles, desc="potential evaporation per tile", unit="tile", disable=not progress)
+    ):
+        zone_climate = climates[zone]
+        cover = adjusted_cover(plan_file.covers[cover_name], plan_file.adjustments)
+        rates = cover_evaporation(zone_climate, cover, et0_mm=et0_by_zone[zone])
+        rain[:, k] = zone_climate.daily["rain_mm"].to_numpy()
+        wet[:, k] = rates["wet_mm"].to_numpy()
+        dry[:, k] = rates["dry_mm"].to_numpy()
+        soil[:, k] = rates["soil_mm"].to_numpy()
+    return rain, wet, dry, soil
+
+
 def simulate_catchment(
     plan_file: PlanFile, *, climate: Climate | None = None, progress: bool = False
 ) -> TileResults:
@@ -303,28 +361,12 @@ def simulate_catchment(
     TileResults
         Compact results of every tile, ready for :func:`mix_tiles`.
     """
-    from tqdm.auto import tqdm
-
     climates = zone_climates(plan_file, climate)
-    cover_names = plan_file.covers_used()
-    tiles = [(zone.name, cover) for zone in plan_file.zones for cover in cover_names]
+    tiles = plan_tiles(plan_file)
     dates = next(iter(climates.values())).daily.index
-    n_days = len(dates)
-    rain, wet, dry, soil = (np.empty((n_days, len(tiles))) for _ in range(4))
-    et0_by_zone = {}
-    for k, (zone, cover_name) in enumerate(
-        tqdm(tiles, desc="potential evaporation per tile", unit="tile", disable=not progress)
-    ):
-        zone_climate = climates[zone]
-        if zone not in et0_by_zone:
-            et0_by_zone[zone] = reference_et(zone_climate).to_numpy()
-        rates = cover_evaporation(
-            zone_climate, plan_file.covers[cover_name], et0_mm=et0_by_zone[zone]
-        )
-        rain[:, k] = zone_climate.daily["rain_mm"].to_numpy()
-        wet[:, k] = rates["wet_mm"].to_numpy()
-        dry[:, k] = rates["dry_mm"].to_numpy()
-        soil[:, k] = rates["soil_mm"].to_numpy()
+    et0_by_zone = {zone: reference_et(c).to_numpy() for zone, c in climates.items()}
+    rain, wet, dry, soil = tile_forcing(plan_file, climates, et0_by_zone, tiles,
+                                        progress=progress)
 
     year_codes, year_values = pd.factorize(dates.year, sort=True)
     run = simulate_tiles(

@@ -21,3 +21,11 @@ class PlanFileError(CoveryieldError, ValueError):
 
 class OutputError(CoveryieldError, OSError):
     """An output could not be written (for example the target exists and would be overwritten)."""
+
+
+class ObservedFlowError(CoveryieldError, ValueError):
+    """An observed-flow record is malformed, or does not fit the climate record it is set beside."""
+
+
+class CalibrationError(CoveryieldError, ValueError):
+    """A calibration cannot be set up (e.g. too few observed days in a period)."""
