@@ -12,11 +12,15 @@ import shutil
 import tempfile
 from collections.abc import Callable
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from coveryield.comparison import CAUTION, Comparison
 from coveryield.errors import OutputError
 from coveryield.physics.curves import CROSSCHECK_TOLERANCE
 from coveryield.report_html import render_report
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 #: Files written by :func:`write_outputs`, in order.
 OUTPUT_FILES = (
@@ -28,7 +32,11 @@ OUTPUT_FILES = (
     "tiles.csv",
     "README.txt",
     "report.html",
+    "daily_flow.csv",
+    "ensemble.csv",
 )
+#: Files written only in some runs (``ensemble.csv`` with ``--ensemble``).
+OPTIONAL_OUTPUT_FILES = ("ensemble.csv",)
 
 
 def _signed(value: float, digits: int = 1) -> str:
@@ -93,10 +101,47 @@ def comparison_table(result: Comparison) -> str:
         "evap vs Zhang: daily model against the Zhang et al. (2001) curve for the same mix; "
         "* marks a difference above the stated tolerance "
         f"({100 * CROSSCHECK_TOLERANCE:.0f} %).",
-        "",
-        f"CAUTION: {CAUTION}",
     ]
+    if result.ensemble is not None:
+        lines += ["", *band_lines(result)]
+    lines += ["", f"CAUTION: {CAUTION}"]
     return "\n".join(lines)
+
+
+def band_text(central: float, low: float, high: float, digits: int = 0,
+              signed: bool = True) -> str:
+    """A figure with its band, e.g. ``−48 (−61 to −33)`` (the minus sign is U+2212)."""
+    def fmt(value: float) -> str:
+        return _signed(value, digits) if signed else f"{value:,.{digits}f}"
+
+    return f"{fmt(central)} ({fmt(low)} to {fmt(high)})"
+
+
+def band_lines(result: Comparison) -> list[str]:
+    """Lines giving each plan's headline figures with their 5-95 % ensemble band [mm/yr]."""
+    e = result.ensemble
+    lines = [
+        f"Bands: 5th to 95th percentile over {e.n_members} parameter sets (Latin hypercube, "
+        f"seed {e.seed}); central figures use the plan file's parameters. mm/yr.",
+        f"{'plan':<24}{'mean yield':>24}{'change':>24}{'change in dry years':>26}",
+    ]
+    for name in result.plan_names:
+        o = result.outcome(name)
+        b = result.bands(result.plan_file.plans[name])
+        mean = band_text(o.mean_yield_mm, *_ends(b["mean_yield_mm"]), signed=False)
+        row = f"{name[:23]:<24}{mean:>24}"
+        if name != "current":
+            c = result.change(o)
+            row += (f"{band_text(c.yield_mm, *_ends(b['change_mm'])):>24}"
+                    f"{band_text(c.dry10_mm, *_ends(b['dry_year_change_mm'])):>26}")
+        lines.append(row)
+    lines.append("A band shows how far the model's answer moves with its parameters; it is not a "
+                 "confidence interval for the real catchment.")
+    return lines
+
+
+def _ends(values: tuple[float, float, float]) -> tuple[float, float]:
+    return values[0], values[2]
 
 
 def _readme_text(result: Comparison) -> str:
@@ -112,11 +157,31 @@ def _readme_text(result: Comparison) -> str:
             "crosscheck.csv    mean annual evaporation: daily model vs Zhang (2001) and Fu (1981)",
             "tiles.csv         the same per zone and cover (tile), with mean rain and ET0",
             "report.html       one-page report with charts (self-contained; open in a browser)",
-            "",
-            f"CAUTION: {CAUTION}",
-            "",
+            "daily_flow.csv    routed streamflow at the outlet per plan and day, m3/s",
         ]
+        + (
+            [
+                "ensemble.csv      one row per parameter set and plan: headline figures (mm/yr)",
+                "                  and the parameter values drawn; the bands in summary.json",
+                "                  (_p05, _p50, _p95) are percentiles over these rows",
+            ]
+            if result.ensemble is not None
+            else []
+        )
+        + ["", f"CAUTION: {CAUTION}", ""]
     )
+
+
+def daily_flow_table(result: Comparison) -> pd.DataFrame:
+    """Routed streamflow at the outlet, long format: ``date``, ``plan``, ``flow_m3s`` [m3 s-1]."""
+    import pandas as pd
+
+    frames = [
+        pd.DataFrame({"date": result.tiles.dates.strftime("%Y-%m-%d"), "plan": name,
+                      "flow_m3s": result.outcome(name).flow_m3s.to_numpy()})
+        for name in result.plan_names
+    ]
+    return pd.concat(frames, ignore_index=True)
 
 
 def _write_all(result: Comparison, folder: Path) -> None:
@@ -128,6 +193,9 @@ def _write_all(result: Comparison, folder: Path) -> None:
     result.cover_crosscheck_table().to_csv(folder / "tiles.csv", index=False, float_format="%.2f")
     (folder / "README.txt").write_text(_readme_text(result))
     (folder / "report.html").write_text(render_report(result), encoding="utf-8")
+    daily_flow_table(result).to_csv(folder / "daily_flow.csv", index=False, float_format="%.5f")
+    if result.ensemble is not None:
+        result.ensemble_table().to_csv(folder / "ensemble.csv", index=False, float_format="%.4f")
 
 
 def _staging_folder(target: Path) -> Path:
@@ -217,7 +285,10 @@ def write_outputs(result: Comparison, out_dir: str | os.PathLike, *, force: bool
     try:
         _write_all(result, staging)
         for name in OUTPUT_FILES:
-            os.replace(staging / name, out / name)
+            if (staging / name).exists():
+                os.replace(staging / name, out / name)
+            elif name in OPTIONAL_OUTPUT_FILES and (out / name).is_file():
+                os.remove(out / name)  # an earlier run's file that this run does not make
     except OSError as exc:
         raise OutputError(f"{out}: writing outputs failed ({exc}); nothing was changed") from None
     finally:

@@ -23,6 +23,17 @@ def add_parser(subparsers) -> None:
     parser.add_argument(
         "--force", action="store_true", help="replace earlier coveryield outputs in a non-empty DIR"
     )
+    parser.add_argument(
+        "--ensemble",
+        metavar="N",
+        type=int,
+        help="also run N parameter sets drawn by Latin hypercube from the covers' documented "
+        "ranges and give every headline a 5-95 %% band (100-200 is a good size)",
+    )
+    parser.add_argument(
+        "--seed", metavar="S", type=int, default=None,
+        help="seed of the ensemble's draws: the same seed gives the same bands (default: random)",
+    )
     parser.set_defaults(run=run)
 
 
@@ -31,12 +42,21 @@ def run(args: argparse.Namespace) -> int:
     from coveryield.comparison import compare
     from coveryield.reports import comparison_table, write_outputs
 
-    result = compare(args.plan, progress=sys.stderr.isatty())
+    from coveryield.errors import CoveryieldError
+
+    if args.ensemble is not None and args.ensemble < 2:
+        raise CoveryieldError(f"--ensemble {args.ensemble}: expected at least 2 parameter sets "
+                              "(100-200 give stable 5-95 % bands)")
+    if args.seed is not None and args.ensemble is None:
+        raise CoveryieldError("--seed: only used with --ensemble N")
+    result = compare(args.plan, progress=sys.stderr.isatty(), ensemble=args.ensemble,
+                     seed=args.seed)
     print(comparison_table(result))
     if args.out:
         out = write_outputs(result, args.out, force=args.force)
         print(
             f"\nwrote {out}/ (annual.csv, summary.json, monthly.csv, flow_duration.csv, "
-            "crosscheck.csv, tiles.csv)"
+            "crosscheck.csv, tiles.csv, daily_flow.csv, report.html"
+            + (", ensemble.csv)" if result.ensemble is not None else ")")
         )
     return 0
