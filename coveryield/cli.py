@@ -14,6 +14,7 @@ import sys
 
 #: Sub-command name -> module under coveryield.commands (imported lazily).
 COMMANDS = {
+    "calibrate": "calibrate",
     "climate": "climate",
     "compare": "compare",
     "covers": "covers",
