@@ -259,8 +259,21 @@ class Headline:
         self.widget = widgets.VBox([yield_box, change_box, dry_box, evap_box],
                                    layout=widgets.Layout(flex="1 1 380px", max_width="640px",
                                                          margin="0 0 0 16px"))
-        state.observe(guard("show the headline figures")(self.update), names="outcome")
+        state.observe(guard("show the headline figures")(self.update),
+                      names=["outcome", "bands"])
         self.update()
+
+    def _band(self, key: str, signed_figure: bool = True) -> str:
+        """`` (−61 to −33)``: the 5-95 % band of a headline, or nothing without an ensemble."""
+        if key not in self.state.bands:
+            return ""
+        low, _, high = self.state.bands[key]
+        if low == high:  # e.g. no change from current in any member: nothing to show
+            return ""
+        fmt = (lambda v: signed(v, "", 0)) if signed_figure else (lambda v: f"{v:,.0f}")
+        return (f' <span class="cy-band" style="font-size:15px;font-weight:400;'
+                f'color:{palette.MUTED}" title="5th to 95th percentile over the parameter '
+                f'ensemble">({fmt(low)} to {fmt(high)})</span>')
 
     def update(self, _change: dict | None = None) -> None:
         """Write the edited plan's figures (and its change against ``current``)."""
@@ -269,20 +282,23 @@ class Headline:
         small = f'style="font-size:12px;color:{palette.MUTED}"'
         self.yield_main.value = (
             f"<span {big}>{edited.mean_yield_mm:,.1f} mm/yr</span>"
+            f"{self._band('mean_yield_mm', signed_figure=False)}"
             f" <span {small}>({edited.mean_yield_ml:,.0f} ML/yr)</span>"
         )
         self.yield_detail.value = (
             f"<span {small}>current: {base.mean_yield_mm:,.1f} mm/yr "
             f"({base.mean_yield_ml:,.0f} ML/yr)</span>"
         )
-        self.change_main.value = f'<span {big}>{signed(change.yield_mm, "mm/yr")}</span>'
+        self.change_main.value = (f'<span {big}>{signed(change.yield_mm, "mm/yr")}</span>'
+                                  f"{self._band('change_mm')}")
         self.change_detail.value = (
             f"<span {small}>{signed(change.yield_pct, '%')}, "
             f"{signed(change.yield_ml, 'ML/yr', 0)}; low flow Q95 "
             f"{signed(change.q95_pct, '%')}</span>"
         )
         years = ", ".join(str(y) for y in self.state.comparison.dry_years)
-        self.dry_main.value = f'<span {big}>{signed(change.dry10_mm, "mm/yr")}</span>'
+        self.dry_main.value = (f'<span {big}>{signed(change.dry10_mm, "mm/yr")}</span>'
+                               f"{self._band('dry_year_change_mm')}")
         self.dry_detail.value = (
             f"<span {small}>mean change in {years}; driest year "
             f"{signed(change.driest_year_mm, 'mm')}</span>"
