@@ -42,6 +42,11 @@ def test_button_fills_the_progress_bar_and_shows_bands(banded):
     assert banded.progress_seen[-1] == 12 and banded.uncertainty.progress.max == 12
     assert "Bands from 12 parameter sets" in banded.uncertainty.status.value
     assert not banded.uncertainty.button.disabled
+    assert BAND.search(banded.headline.yield_main.value)
+    # at the start the edited plan is `current`: every member's change is 0, no band to show
+    assert "cy-band" not in banded.headline.change_main.value
+    banded.controls.zone_picker.value = "lower"
+    banded.controls.sliders["pasture"].value = 30.0
     for widget in (banded.headline.yield_main, banded.headline.change_main,
                    banded.headline.dry_main):
         assert BAND.search(widget.value), widget.value
