@@ -175,3 +175,11 @@ def test_compare_command_with_ensemble(small_plan_path, tmp_path, capsys):
 def test_bad_ensemble_options_exit_2(small_plan_path, capsys, args, fragment):
     assert main(["compare", str(small_plan_path), *args]) == 2
     assert fragment in capsys.readouterr().err
+
+
+def test_covers_command_lists_the_ensemble_ranges(capsys):
+    assert main(["covers"]) == 0
+    text = capsys.readouterr().out
+    spread = PARAMETER_RANGES["forest"]["rs_s_per_m"]
+    assert f"forest.rs_s_per_m [s m-1]: {spread.low:g} to {spread.high:g}" in text
+    assert "Ensemble ranges" in text
