@@ -299,7 +299,6 @@ def tile_forcing(
     et0_by_zone: dict[str, np.ndarray],
     tiles: list[tuple[str, str]],
     *,
-    out: tuple[np.ndarray, ...] | None = None,
     progress: bool = False,
 ) -> tuple[np.ndarray, ...]:
     """Rain and the potential evaporation rates of every tile, time-major for the engine.
@@ -314,8 +313,6 @@ def tile_forcing(
         Each zone's FAO-56 reference evaporation [mm d-1].
     tiles : list of (str, str)
         (zone, cover) per tile.
-    out : tuple of 4 numpy.ndarray, optional
-        Arrays (or column views) of shape (n_days, n_tiles) to fill instead of new ones.
     progress : bool
         Show a progress bar on stderr.
 
@@ -328,7 +325,7 @@ def tile_forcing(
     from tqdm.auto import tqdm
 
     n_days = len(next(iter(climates.values())).daily.index)
-    rain, wet, dry, soil = out or tuple(np.empty((n_days, len(tiles))) for _ in range(4))
+    rain, wet, dry, soil = (np.empty((n_days, len(tiles))) for _ in range(4))
     for k, (zone, cover_name) in enumerate(
         tqdm(tiles, desc="potential evaporation per tile", unit="tile", disable=not progress)
     ):

@@ -216,8 +216,11 @@ def _run_chunk(plan_file, design, values, climates, et0_by_zone, tiles, year_cod
     for j, (_, row) in enumerate(values.iterrows()):
         member = design.member_plan(plan_file, row)
         columns = slice(j * n_tiles, (j + 1) * n_tiles)
-        tile_forcing(member, climates, et0_by_zone, tiles,
-                     out=tuple(a[:, columns] for a in arrays))
+        # fill one member's compact block, then copy it in: rows of n_tiles values at a time
+        # are far cheaper than single strided columns of the wide chunk array
+        for wide, block in zip(arrays, tile_forcing(member, climates, et0_by_zone, tiles),
+                               strict=True):
+            wide[:, columns] = block
         parts.append(tile_parameters(member, tiles))
     run = simulate_tiles(*arrays, _concat_parameters(parts), year_codes.astype(np.int64),
                          keep_daily_yield=False)
