@@ -124,11 +124,11 @@ class Adjustments(BaseModel):
         return self == Adjustments()
 
     def factor_ranges(self) -> dict[str, tuple[float, float]]:
-        """The ranges given, in :data:`FACTORS` order [-]."""
+        """Return the ranges given, in :data:`FACTORS` order [-]."""
         return {name: self.ranges[name] for name in FACTORS if name in self.ranges}
 
     def toml_items(self) -> dict[str, Any]:
-        """The keys that differ from the defaults, as a plan file writes them."""
+        """Return the keys that differ from the defaults, as a plan file writes them."""
         items: dict[str, Any] = {n: getattr(self, n) for n in FACTORS
                                  if getattr(self, n) != 1.0}
         if self.ranges:
@@ -137,7 +137,7 @@ class Adjustments(BaseModel):
 
 
 def adjusted_cover(cover: Cover, adjustments: Adjustments) -> Cover:
-    """A cover with the catchment-wide surface-resistance factor applied.
+    """Apply the catchment-wide surface-resistance factor to a cover.
 
     Parameters
     ----------

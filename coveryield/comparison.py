@@ -480,7 +480,7 @@ class Comparison:
         return entries
 
     def ensemble_summary(self) -> dict:
-        """What the ensemble varied and what its bands mean, JSON-ready."""
+        """Describe what the ensemble varied and what its bands mean, JSON-ready."""
         e = self.ensemble
         return {
             "members": e.n_members,

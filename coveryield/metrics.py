@@ -100,7 +100,7 @@ def nse(simulated, observed) -> float:
 
 
 def kge_parts(simulated, observed) -> tuple[float, float, float, float]:
-    """The three parts of the Kling–Gupta efficiencies.
+    """Compute the three parts of the Kling–Gupta efficiencies.
 
     Parameters
     ----------

@@ -184,7 +184,7 @@ def _parse_date(text: str, number: int, problems: list[str]) -> _date | None:
 
 
 def _parse_flow(text: str, number: int, day: _date | None, problems: list[str]) -> float:
-    """The flow of one row: NaN when missing; a problem when not a finite number ≥ 0."""
+    """Parse the flow of one row: NaN when missing; a problem when not a finite number ≥ 0."""
     stripped = text.strip()
     if stripped.lower() in MISSING_MARKERS:
         return math.nan
@@ -225,7 +225,7 @@ def _sequence_problems(days: list[tuple[int, _date]]) -> list[str]:
 
 
 def _gap_table(series: pd.Series) -> pd.DataFrame:
-    """Runs of missing days: start, end, n_days."""
+    """Tabulate the runs of missing days: start, end, n_days."""
     missing = series.isna().to_numpy()
     padded = np.concatenate([[0], missing.astype(int), [0]])
     steps = np.diff(padded)

@@ -387,7 +387,7 @@ def _read_catchment(data, base_dir: Path, problems: list[Problem]) -> CatchmentS
 
 
 def _read_adjustments(data, problems: list[Problem]) -> Adjustments:
-    """The optional [adjustments] table (defaults when absent or invalid; problems reported)."""
+    """Read the optional [adjustments] table (defaults when absent or invalid; problems noted)."""
     section = data.get("adjustments", {})
     if not isinstance(section, Mapping):
         problems.append(("adjustments", section, "expected an [adjustments] table"))

@@ -1,6 +1,8 @@
-"""Outputs of a calibration: ``calibration.json``, ``calibrated.toml``, ``fit_flow.csv`` and a
-one-page ``report.html`` with the fit charts (observed against simulated hydrograph, flow
-duration curves). Nothing here computes hydrology.
+"""Outputs of a calibration: its JSON, the calibrated plan file, the daily fit and a report.
+
+``calibration.json``, ``calibrated.toml``, ``fit_flow.csv`` and a one-page ``report.html`` with
+the fit charts (observed against simulated hydrograph, flow duration curves). Nothing here
+computes hydrology.
 
 Flows are m3 s-1; scores are dimensionless except the bias [%].
 """

@@ -110,7 +110,7 @@ def comparison_table(result: Comparison) -> str:
 
 def band_text(central: float, low: float, high: float, digits: int = 0,
               signed: bool = True) -> str:
-    """A figure with its band, e.g. ``−48 (−61 to −33)`` (the minus sign is U+2212)."""
+    """Format a figure with its band, e.g. ``−48 (−61 to −33)`` (the minus sign is U+2212)."""
     def fmt(value: float) -> str:
         return _signed(value, digits) if signed else f"{value:,.{digits}f}"
 

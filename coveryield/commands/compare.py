@@ -40,9 +40,8 @@ def add_parser(subparsers) -> None:
 def run(args: argparse.Namespace) -> int:
     """Compare the plans, print the table, optionally write the outputs."""
     from coveryield.comparison import compare
-    from coveryield.reports import comparison_table, write_outputs
-
     from coveryield.errors import CoveryieldError
+    from coveryield.reports import comparison_table, write_outputs
 
     if args.ensemble is not None and args.ensemble < 2:
         raise CoveryieldError(f"--ensemble {args.ensemble}: expected at least 2 parameter sets "

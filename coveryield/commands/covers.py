@@ -74,7 +74,7 @@ def cover_lines(covers: dict) -> list[str]:
 
 
 def ensemble_range_lines() -> list[str]:
-    """The numeric ranges `compare --ensemble` draws from, per built-in cover, with sources."""
+    """List the numeric ranges `compare --ensemble` draws from, per built-in cover, with sources."""
     from coveryield.covers import PARAMETER_INFO, PARAMETER_RANGES
 
     lines = ["", "Ensemble ranges (compare --ensemble N draws uniformly within them; a derived "

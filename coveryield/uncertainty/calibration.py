@@ -285,7 +285,7 @@ class _Fit:
     # ---- building and scoring ------------------------------------------------------------
 
     def variant(self, values: dict[str, float]) -> PlanFile:
-        """The (`current`-only) plan file with trial values."""
+        """Return the (`current`-only) plan file with trial values."""
         return with_values(self.plan, values)
 
     def simulate(self, values: dict[str, float]) -> TileResults:
@@ -344,7 +344,7 @@ class _Fit:
 
 def with_values(plan_file: PlanFile, values: dict[str, float],
                 ranges: dict[str, tuple[float, float]] | None = None) -> PlanFile:
-    """A plan file with parameter values set in their tables (adjustments or catchment).
+    """Set parameter values in their plan-file tables (adjustments or catchment).
 
     Parameters
     ----------
@@ -474,7 +474,7 @@ def _search(fit: _Fit, start: dict[str, float], seed: int):
 
 
 def _simplex(centre: np.ndarray, step: float) -> np.ndarray:
-    """A start simplex around ``centre`` inside the unit cube, edges of length ``step``."""
+    """Build a start simplex around ``centre`` in the unit cube, edges of length ``step``."""
     vertices = [centre]
     for k in range(len(centre)):
         vertex = centre.copy()

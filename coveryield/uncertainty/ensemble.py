@@ -48,7 +48,7 @@ DEFAULT_MEMORY_MB = 64.0
 
 
 def band(values) -> tuple[float, float, float]:
-    """The 5th, 50th and 95th percentiles of member values.
+    """Take the 5th, 50th and 95th percentiles of member values.
 
     Parameters
     ----------

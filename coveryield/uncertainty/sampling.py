@@ -90,7 +90,7 @@ class EnsembleDesign:
 
     @classmethod
     def for_plan(cls, plan_file: PlanFile) -> EnsembleDesign:
-        """The design for the covers a plan file uses and the ranges its adjustments give.
+        """Design for the covers a plan file uses and the ranges its adjustments give.
 
         Parameters
         ----------
@@ -177,7 +177,7 @@ class EnsembleDesign:
         return pd.DataFrame(low + points * (high - low), columns=self.names, index=index)
 
     def member_plan(self, plan_file: PlanFile, values: pd.Series) -> PlanFile:
-        """The plan file with one member's parameter values (covers and adjustments).
+        """Return the plan file with one member's parameter values (covers and adjustments).
 
         Parameters
         ----------

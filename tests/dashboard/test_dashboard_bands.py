@@ -39,7 +39,8 @@ def test_no_bands_before_the_button(dashboard):
 
 def test_button_fills_the_progress_bar_and_shows_bands(banded):
     assert banded.errors.widget.value == ""
-    assert banded.progress_seen[-1] == 12 and banded.uncertainty.progress.max == 12
+    assert banded.progress_seen[-1] == 12
+    assert banded.uncertainty.progress.max == 12
     assert "Bands from 12 parameter sets" in banded.uncertainty.status.value
     assert not banded.uncertainty.button.disabled
     assert BAND.search(banded.headline.yield_main.value)
@@ -59,7 +60,8 @@ def test_headline_reads_figure_then_band_and_the_band_holds_it(banded):
     text = banded.headline.change_main.value
     figure = re.search(r"([\u2212+\u00b1][\d,]+\.\d) mm/yr", text)
     low, high = (_value(v) for v in BAND.search(text).groups())
-    assert figure and low <= _value(figure.group(1)) <= high
+    assert figure
+    assert low <= _value(figure.group(1)) <= high
     p05, p50, p95 = state.bands["change_mm"]
     assert (round(p05), round(p95)) == (low, high)
     assert p05 <= p50 <= p95

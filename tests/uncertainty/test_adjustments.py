@@ -31,7 +31,8 @@ def test_read_and_written_back(tmp_path):
         "surface_resistance_factor = 1.25\nroot_zone_factor = 0.8\n"
         "ranges = { surface_resistance_factor = [1.1, 1.4], root_zone_factor = [0.7, 1] }")))
     a = plan.adjustments
-    assert a.surface_resistance_factor == 1.25 and a.root_zone_factor == 0.8
+    assert a.surface_resistance_factor == 1.25
+    assert a.root_zone_factor == 0.8
     assert a.ranges == {"surface_resistance_factor": (1.1, 1.4), "root_zone_factor": (0.7, 1.0)}
     out = write_plan_file(plan, tmp_path / "again.toml")
     assert load_plan(out).adjustments == a

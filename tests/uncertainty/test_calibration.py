@@ -107,7 +107,8 @@ def test_calibrate_command_writes_outputs_and_compare_reproduces_the_fit(
     assert main(["calibrate", str(small_plan_path), "--observed", str(synthetic), "--out",
                  str(out), "--split", "1995"]) == 0
     printed = capsys.readouterr().out
-    assert "validation" in printed and "KGE′" in printed
+    assert "validation" in printed
+    assert "KGE′" in printed
     assert "licensed hydrological practice" in printed
     assert _digest(small_plan_path) == before  # the input plan file is never overwritten
     assert sorted(p.name for p in out.iterdir()) == [
@@ -129,14 +130,15 @@ def test_calibrate_command_writes_outputs_and_compare_reproduces_the_fit(
     assert kge_2012(flow.reindex(days), observed) == pytest.approx(
         report["validation"]["kge"], abs=1e-12)
     html = (out / "report.html").read_text()
-    assert "<svg" in html and "Flow duration curves" in html
+    assert "<svg" in html
+    assert "Flow duration curves" in html
     assert "licensed hydrological practice" in html
 
 
 @pytest.mark.parametrize(("rows", "fragment"), [
     ("2030-01-01,1.0\n2030-01-02,1.1\n", "does not overlap the climate record"),
     ("".join(f"{d:%Y-%m-%d},1.0\n" for d in pd.date_range("1993-01-01", periods=400)),
-     f"only 400 observed days (1993-01-01 to 1994-02-04) overlap the climate record"),
+     "only 400 observed days (1993-01-01 to 1994-02-04) overlap the climate record"),
     ("1995-01-01,-2\n1995-01-02,abc\n", "line 2 (1995-01-01): flow_m3s = -2 is negative"),
 ])
 def test_bad_observed_records_exit_2_and_write_nothing(small_plan_path, tmp_path, capsys, rows,
