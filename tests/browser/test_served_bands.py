@@ -24,8 +24,17 @@ def test_bands_are_estimated_with_progress_in_chromium(served, browser, artifact
         timeout=180_000)
     status = page.locator(".cy-ensemble-status").inner_text()
     assert "Bands from 10 parameter sets" in status
+    band = re.compile(r"\([\u2212+\u00b1]?[\d,]+ to [\u2212+\u00b1]?[\d,]+\)")
+    assert band.fullmatch(page.locator(".cy-band").first.inner_text().strip())
+    # the edited plan is still `current`: no change in any member, so no band on the change yet
+    readout = page.locator(".cy-share-forest .widget-readout")
+    readout.click()
+    page.keyboard.press("Control+A")
+    page.keyboard.type("60")
+    page.keyboard.press("Enter")
+    page.wait_for_selector(".cy-yield-change .cy-band", timeout=30_000)
     change = page.locator(".cy-yield-change").inner_text()
-    assert re.search(r"mm/yr \([\u2212+\u00b1]?[\d,]+ to [\u2212+\u00b1]?[\d,]+\)", change), change
+    assert re.search(r"mm/yr " + band.pattern, change), change
     assert page.locator(".cy-error").inner_text().strip() == ""
     page.screenshot(path=str(artifacts / "dashboard-bands.png"), full_page=True)
     page.close()
