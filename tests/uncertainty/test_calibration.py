@@ -129,6 +129,14 @@ def test_calibrate_command_writes_outputs_and_compare_reproduces_the_fit(
     observed = read_observed_flow(synthetic).flow_m3s.reindex(days)
     assert kge_2012(flow.reindex(days), observed) == pytest.approx(
         report["validation"]["kge"], abs=1e-12)
+    # an ensemble on the calibrated plan file draws each factor from the calibration's range
+    from coveryield.plans import load_plan
+    from coveryield.uncertainty.sampling import EnsembleDesign
+
+    design = EnsembleDesign.for_plan(load_plan(out / "calibrated.toml"))
+    factors = {d.name: (d.low, d.high) for d in design.dimensions if d.base is None}
+    assert factors == {name: tuple(report["parameters"][name]["range"]) for name in factors}
+    assert set(factors) == {"surface_resistance_factor", "root_zone_factor"}
     html = (out / "report.html").read_text()
     assert "<svg" in html
     assert "Flow duration curves" in html
@@ -177,3 +185,8 @@ def test_existing_out_folder_is_refused_before_calibrating(small_plan_path, synt
                  str(out)]) == 2
     assert "exists already" in capsys.readouterr().err
     assert list(out.iterdir()) == []
+
+
+def test_progress_is_shown_on_request(small_plan, small_climate, synthetic, capsys):
+    calibrate(small_plan, read_observed_flow(synthetic), climate=small_climate, progress=True)
+    assert "calibration runs" in capsys.readouterr().err

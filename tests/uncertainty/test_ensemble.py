@@ -183,3 +183,11 @@ def test_covers_command_lists_the_ensemble_ranges(capsys):
     spread = PARAMETER_RANGES["forest"]["rs_s_per_m"]
     assert f"forest.rs_s_per_m [s m-1]: {spread.low:g} to {spread.high:g}" in text
     assert "Ensemble ranges" in text
+
+
+def test_ensemble_progress_bar_and_callback(small_plan, small_climate, capsys):
+    seen = []
+    simulate_ensemble(small_plan, 3, seed=1, climate=small_climate, memory_mb=1e-6,
+                      progress=True, on_progress=lambda done, total: seen.append((done, total)))
+    assert seen == [(1, 3), (2, 3), (3, 3)]
+    assert "ensemble members" in capsys.readouterr().err
