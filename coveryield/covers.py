@@ -81,6 +81,8 @@ class SpreadRange(NamedTuple):
 #: --ensemble``). Only parameters that move this cover's evaporation are listed (crops take their
 #: transpiration from a Kc calendar, so their surface resistance is not; the curve number splits
 #: yield into quickflow and drainage but barely changes the yield, so it is not either). A
+#: parameter a cover leaves unset (None: derived from another, e.g. a canopy store from the leaf
+#: area) is not drawn for that cover; it follows what it derives from. A
 #: derived cover takes its base's range relative to the base's value (a young pine 6 m high
 #: varies from 3 to 9 m when forest varies from 10 to 30 m) and moves with its base in every
 #: draw, both being the same kind of vegetation.
@@ -118,8 +120,6 @@ PARAMETER_RANGES: dict[str, dict[str, SpreadRange]] = {
                                           "for LAI 3-6; more by von Hoyningen-Huene (1981) "
                                           "(from memory)"),
         "rooting_depth_m": SpreadRange(1.0, 1.5, "FAO-56 Table 22 spring wheat 1.0-1.5 m"),
-        "fallow_kc": SpreadRange(0.3, 0.7, "FAO-56 Kc ini of bare soil, by wetting interval "
-                                 "(from memory)"),
     },
     "water": {
         "albedo": SpreadRange(0.06, 0.10, "open water 0.06-0.08 as a daily mean, more at low sun "
@@ -399,7 +399,7 @@ def _check_parameter_ranges() -> None:
         cover = BUILTIN_COVERS[cover_name]
         for parameter, spread in ranges.items():
             value = getattr(cover, parameter)
-            if not spread.low <= value <= spread.high:
+            if value is not None and not spread.low <= value <= spread.high:
                 raise AssertionError(
                     f"PARAMETER_RANGES[{cover_name!r}][{parameter!r}] = "
                     f"{spread.low}-{spread.high} does not hold the built-in value {value}")

@@ -107,6 +107,8 @@ class EnsembleDesign:
             if base not in used:
                 continue
             for parameter, spread in ranges.items():
+                if getattr(BUILTIN_COVERS[base], parameter) is None:
+                    continue  # derived from another parameter (see covers.PARAMETER_RANGES)
                 dims.append(Dimension(
                     f"{base}.{parameter}", base, parameter, spread.low, spread.high,
                     float(getattr(BUILTIN_COVERS[base], parameter)), spread.source))
@@ -203,8 +205,11 @@ class EnsembleDesign:
         for name, cover in plan_file.covers.items():
             update = {}
             for parameter, ratio in ratios.get(cover.base, {}).items():
+                value = getattr(cover, parameter)
+                if value is None:  # derived from another parameter, which is drawn
+                    continue
                 low, high = _field_limits(parameter)
-                update[parameter] = float(np.clip(getattr(cover, parameter) * ratio, low, high))
+                update[parameter] = float(np.clip(value * ratio, low, high))
             covers[name] = cover.model_copy(update=update) if update else cover
         adjustments = plan_file.adjustments.model_copy(update=factors)
         return plan_file.model_copy(update={"covers": covers, "adjustments": adjustments})
