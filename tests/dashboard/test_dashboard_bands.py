@@ -90,3 +90,17 @@ def test_share_change_with_bands_never_runs_the_daily_loop(banded, monkeypatch):
     assert banded.errors.widget.value == ""
     assert banded.state.bands != before  # the band moved with the shares
     assert BAND.search(banded.headline.change_main.value)
+
+
+def test_export_carries_the_bands(banded, tmp_path):
+    import json
+
+    from coveryield.dashboard.exports import export_tables
+
+    folder = export_tables(banded.state, tmp_path / "plans.toml", "banded")
+    record = json.loads((folder / "summary.json").read_text())
+    bands = record["bands_mm_per_yr"]
+    assert bands["members"] == 12
+    assert bands["percentiles"] == [5, 50, 95]
+    low, mid, high = bands["change_mm"]
+    assert low <= mid <= high
