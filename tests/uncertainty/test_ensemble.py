@@ -158,6 +158,10 @@ def test_compare_command_with_ensemble(small_plan_path, tmp_path, capsys):
                                        "dry_year_change_mm"]
     p05 = np.percentile(table.loc[table["plan"] == "plant", "change_mm"], 5)
     assert p05 == pytest.approx(summary["plans"]["plant"]["change_mm_p05"], abs=1e-3)
+    html = (out / "report.html").read_text()
+    assert "Uncertainty bands" in html
+    assert "Error bars: 5th to 95th percentile" in html
+    assert "not a confidence interval" in html
     flow = pd.read_csv(out / "daily_flow.csv")
     assert list(flow.columns) == ["date", "plan", "flow_m3s"]
     assert set(flow["plan"]) == {"current", "plant", "plant-young"}
@@ -191,3 +195,13 @@ def test_ensemble_progress_bar_and_callback(small_plan, small_climate, capsys):
                       progress=True, on_progress=lambda done, total: seen.append((done, total)))
     assert seen == [(1, 3), (2, 3), (3, 3)]
     assert "ensemble members" in capsys.readouterr().err
+
+
+def test_no_bands_without_an_ensemble(small_plan_path, tmp_path):
+    out = tmp_path / "plain"
+    assert main(["compare", str(small_plan_path), "--out", str(out)]) == 0
+    summary = json.loads((out / "summary.json").read_text())
+    assert "ensemble" not in summary
+    assert not any(key.endswith("_p05") for key in summary["plans"]["plant"])
+    assert not (out / "ensemble.csv").exists()
+    assert "Uncertainty bands" not in (out / "report.html").read_text()
