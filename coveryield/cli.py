@@ -16,6 +16,7 @@ import sys
 COMMANDS = {
     "cache": "cache",
     "batch": "batch",
+    "calibrate": "calibrate",
     "climate": "climate",
     "compare": "compare",
     "covers": "covers",

@@ -38,6 +38,7 @@ from coveryield.physics.curves import (
     crosscheck_reason,
 )
 from coveryield.plans import PlanFile, load_plan, validate_shares
+from coveryield.uncertainty.ensemble import BAND_PERCENTILES, EnsembleResults, band
 
 CAUTION = (
     "Screening estimate only: confirm with licensed hydrological practice and local regulations "
@@ -59,6 +60,15 @@ ANNUAL_COLUMNS = (
     "yield_mm",
     "storage_change_mm",
     "yield_ml",
+)
+
+#: What an ensemble band means and does not mean (reports and summary.json carry it).
+ENSEMBLE_MEANING = (
+    "Each band runs from the 5th to the 95th percentile of the figure over the ensemble's "
+    "parameter sets: the spread of this model's answer when cover parameters vary over their "
+    "documented ranges (and catchment factors over a calibration's range). It is not a "
+    "confidence interval for the real catchment: the model's structure, the climate record and "
+    "the ranges themselves add uncertainty that the band does not show."
 )
 
 #: Exceedance probabilities at which the flow duration curve is tabulated [%].
@@ -268,12 +278,18 @@ class Comparison:
     mixes : dict, optional
         Tile weights (a tuple, see :meth:`TileResults.weights`) -> :class:`MixedSeries` already
         computed for them (e.g. read from the tile cache); other weights are mixed on demand.
+    ensemble : EnsembleResults, optional
+        Parameter ensemble of the same tiles (see
+        :func:`coveryield.uncertainty.ensemble.simulate_ensemble`); when given, headlines
+        gain bands (:meth:`bands`). It may also be attached later (:attr:`ensemble`).
     """
 
-    def __init__(self, plan_file: PlanFile, tiles: TileResults, mixes: dict | None = None):
+    def __init__(self, plan_file: PlanFile, tiles: TileResults, mixes: dict | None = None,
+                 ensemble: EnsembleResults | None = None):
         self.plan_file = plan_file
         self.tiles = tiles
         self._mixes = dict(mixes or {})
+        self.ensemble = ensemble
         rain = pd.Series(
             tiles.annual["rain_mm"] @ tiles.weights(plan_file.plans["current"]), index=tiles.years
         )
@@ -590,8 +606,10 @@ class Comparison:
                         "days_below_low_flow_change": c.days_below_per_year,
                     }
                 )
+            entry.update(self._band_entries(name))
             plans[name] = entry
         spec = self.plan_file.catchment
+        extra = {} if self.ensemble is None else {"ensemble": self.ensemble_summary()}
         return {
             "catchment": {
                 "name": spec.name,
@@ -620,13 +638,72 @@ class Comparison:
                 "days": "days per year",
             },
             "caution": CAUTION,
+            **extra,
             "plans": plans,
         }
 
+    # ---- bands from a parameter ensemble ---------------------------------------------------
 
-def compare(
-    plan: PlanFile | str | PathLike, *, progress: bool = False, cache=None
-) -> Comparison:
+    def bands(self, shares: dict[str, dict[str, float]]) -> dict[str, tuple[float, float, float]]:
+        """Bands of the headline figures for any shares (a weighted sum per member, no loop).
+
+        Parameters
+        ----------
+        shares : dict
+            Zone -> cover -> share [-].
+
+        Returns
+        -------
+        dict of str -> (p05, p50, p95)
+            ``mean_yield_mm``, ``change_mm`` and ``dry_year_change_mm`` [mm yr-1]; empty without
+            an ensemble.
+        """
+        if self.ensemble is None:
+            return {}
+        members = self.ensemble.headline_members(
+            self.tiles.weights(shares), self.tiles.weights(self.plan_file.plans["current"]),
+            self.dry_years)
+        return {key: band(values) for key, values in members.items()}
+
+    def _band_entries(self, name: str) -> dict[str, float]:
+        entries = {}
+        for key, values in self.bands(self.plan_file.plans[name]).items():
+            if name == "current" and key != "mean_yield_mm":
+                continue
+            for pct, value in zip(BAND_PERCENTILES, values, strict=True):
+                entries[f"{key}_p{pct:02.0f}"] = value
+        return entries
+
+    def ensemble_summary(self) -> dict:
+        """Describe what the ensemble varied and what its bands mean, JSON-ready."""
+        e = self.ensemble
+        return {
+            "members": e.n_members,
+            "seed": e.seed,
+            "percentiles": list(BAND_PERCENTILES),
+            "sampling": "Latin hypercube, uniform over each range (McKay et al. 1979)",
+            "varied": {d.name: [d.low, d.high] for d in e.design.dimensions},
+            "meaning": ENSEMBLE_MEANING,
+        }
+
+    def ensemble_table(self) -> pd.DataFrame:
+        """One row per member and plan: headline figures [mm yr-1] and the values drawn."""
+        if self.ensemble is None:
+            raise ValueError("no ensemble: compare with ensemble=N first")
+        base = self.tiles.weights(self.plan_file.plans["current"])
+        frames = []
+        for name in self.plan_names:
+            members = self.ensemble.headline_members(
+                self.tiles.weights(self.plan_file.plans[name]), base, self.dry_years)
+            frame = pd.DataFrame(members, index=self.ensemble.parameters.index)
+            frames.append(frame.assign(plan=name).join(self.ensemble.parameters))
+        table = pd.concat(frames).reset_index()
+        first = ["member", "plan", "mean_yield_mm", "change_mm", "dry_year_change_mm"]
+        return table[first + [c for c in table.columns if c not in first]]
+
+
+def compare(plan: PlanFile | str | PathLike, *, progress: bool = False, cache=None,
+            ensemble: int | None = None, seed: int | None = None) -> Comparison:
     """Compare every plan of a plan file.
 
     Parameters
@@ -639,6 +716,11 @@ def compare(
         Take the tile results from this on-disk cache when it holds them for exactly these
         inputs, else simulate and store them there. True uses the default cache folder; None or
         False (the default) neither reads nor writes a cache.
+    ensemble : int, optional
+        Also simulate this many parameter sets drawn by Latin hypercube, for bands on every
+        headline (the central figures stay those of the plan file's parameters).
+    seed : int, optional
+        Seed of the ensemble's draws; the same seed gives the same bands.
 
     Returns
     -------
@@ -651,10 +733,16 @@ def compare(
         For a malformed plan or climate file.
     """
     plan_file = plan if isinstance(plan, PlanFile) else load_plan(plan)
-    if not cache:
-        return Comparison(plan_file, simulate_catchment(plan_file, progress=progress))
-    from coveryield.tile_cache import TileCache, cached_simulation
+    if cache:
+        from coveryield.tile_cache import TileCache, cached_simulation
 
-    cache = TileCache() if cache is True else cache
-    tiles, mixes = cached_simulation(plan_file, cache, progress=progress)
-    return Comparison(plan_file, tiles, mixes)
+        cache = TileCache() if cache is True else cache
+        tiles, mixes = cached_simulation(plan_file, cache, progress=progress)
+    else:
+        tiles, mixes = simulate_catchment(plan_file, progress=progress), None
+    members = None
+    if ensemble is not None:
+        from coveryield.uncertainty.ensemble import simulate_ensemble
+
+        members = simulate_ensemble(plan_file, ensemble, seed=seed, progress=progress)
+    return Comparison(plan_file, tiles, mixes, members)

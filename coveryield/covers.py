@@ -20,7 +20,7 @@ References
 
 from __future__ import annotations
 
-from typing import Literal
+from typing import Literal, NamedTuple
 
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
@@ -74,6 +74,68 @@ PARAMETER_INFO: dict[str, tuple[str, str, str]] = {
         "farm ponds 1-3, small lakes and reservoirs 3-10 (mean depth of the mixed layer)",
         "common practice, no source; used by the heat storage of open water",
     ),
+}
+
+
+
+class SpreadRange(NamedTuple):
+    """Numeric range of one cover parameter, drawn from by ensembles (uniformly).
+
+    Attributes
+    ----------
+    low, high : float
+        Ends of the range [unit of the parameter]; the built-in value lies inside.
+    source : str
+        Where the range comes from, and how sure it is.
+    """
+
+    low: float
+    high: float
+    source: str
+
+
+#: Per built-in cover and parameter: the numeric range ensembles draw from (``compare
+#: --ensemble``). Only parameters that move this cover's evaporation are listed (crops take their
+#: transpiration from a Kc calendar, so their surface resistance is not; the curve number splits
+#: yield into quickflow and drainage but barely changes the yield, so it is not either; the
+#: canopy store follows the leaf area at 0.2 mm per unit LAI, so drawing ``lai`` moves it). A
+#: parameter a cover leaves unset (None: derived from another, e.g. a canopy store from the leaf
+#: area) is not drawn for that cover; it follows what it derives from. A
+#: derived cover takes its base's range relative to the base's value (a young pine 6 m high
+#: varies from 3 to 9 m when forest varies from 10 to 30 m) and moves with its base in every
+#: draw, both being the same kind of vegetation.
+PARAMETER_RANGES: dict[str, dict[str, SpreadRange]] = {
+    "forest": {
+        "albedo": SpreadRange(0.08, 0.15, "Oke (1987) coniferous 0.05-0.15, typical 0.08-0.12 "
+                              "(via secondary sources; typical from memory)"),
+        "height_m": SpreadRange(10.0, 30.0, "FAO-56 Table 12 conifers 10 m; plantations 10-30 m "
+                                "(from memory)"),
+        "rs_s_per_m": SpreadRange(100.0, 220.0, "daytime conifer canopies 60-150 s/m (from "
+                                  "memory); as a daily bulk value our range sits higher, around "
+                                  "the built-in 150 s/m (our choice)"),
+        "lai": SpreadRange(3.0, 10.0, "conifer plantations 3-10 (from memory)"),
+        "rooting_depth_m": SpreadRange(1.0, 2.0, "FAO-56 Table 22 conifer trees 1.0-1.5 m, "
+                                       "widened as Canadell et al. (1996) report far deeper "
+                                       "maxima (3.9 m for temperate conifers)"),
+    },
+    "pasture": {
+        "albedo": SpreadRange(0.17, 0.28, "Oke (1987) grass 0.17-0.28 (via secondary sources)"),
+        "height_m": SpreadRange(0.10, 0.30, "FAO-56 Table 12 grazing pasture: extensive 0.10 m, "
+                                "rotated 0.15-0.30 m"),
+        "rs_s_per_m": SpreadRange(50.0, 100.0, "FAO-56 eq. 5, rs = 100 / (0.5 LAI), for LAI 2-4 "
+                                  "(recomputed)"),
+        "lai": SpreadRange(2.0, 4.0, "grass 2-4 (from memory); FAO-56 reference 2.88"),
+        "rooting_depth_m": SpreadRange(0.5, 1.5, "FAO-56 Table 22 grazing pasture 0.5-1.5 m"),
+    },
+    "crop": {
+        "albedo": SpreadRange(0.16, 0.26, "Oke (1987) cereals 0.16-0.26 (via secondary sources)"),
+        "lai": SpreadRange(3.0, 6.0, "cereals 3-6 (from memory)"),
+        "rooting_depth_m": SpreadRange(1.0, 1.5, "FAO-56 Table 22 spring wheat 1.0-1.5 m"),
+    },
+    "water": {
+        "albedo": SpreadRange(0.06, 0.10, "open water 0.06-0.08 as a daily mean, more at low sun "
+                              "(Oke 1987 via secondary sources); widened for winter sun"),
+    },
 }
 
 
@@ -427,3 +489,18 @@ def derive_cover(
     fields["name"] = name
     fields["base"] = parent.base
     return Cover.model_validate(fields)
+
+
+def _check_parameter_ranges() -> None:
+    """Every range holds its built-in value (run at import: a wrong table fails loudly)."""
+    for cover_name, ranges in PARAMETER_RANGES.items():
+        cover = BUILTIN_COVERS[cover_name]
+        for parameter, spread in ranges.items():
+            value = getattr(cover, parameter)
+            if value is not None and not spread.low <= value <= spread.high:
+                raise AssertionError(
+                    f"PARAMETER_RANGES[{cover_name!r}][{parameter!r}] = "
+                    f"{spread.low}-{spread.high} does not hold the built-in value {value}")
+
+
+_check_parameter_ranges()

@@ -29,3 +29,11 @@ class MissingExtraError(CoveryieldError, ImportError):
 
 class BatchError(CoveryieldError, ValueError):
     """A batch cannot start: no plan files, an unsuitable output folder, no reachable cluster."""
+
+
+class ObservedFlowError(CoveryieldError, ValueError):
+    """An observed-flow record is malformed, or does not fit the climate record it is set beside."""
+
+
+class CalibrationError(CoveryieldError, ValueError):
+    """A calibration cannot be set up (e.g. too few observed days in a period)."""

@@ -174,12 +174,17 @@ class OutputFolder:
         Replace coveryield's own earlier outputs of the same names.
     inputs : dict
         Role (``"plan file"``, ``"climate file"``, ...) -> path of each input of the run.
+    retire : tuple of str
+        Files an earlier run may have left that this run does not write (e.g. ``ensemble.csv``
+        after a run without an ensemble): removed on writing if coveryield wrote them and
+        nobody changed them since, so no stale figure sits beside the new ones.
     """
 
     path: Path
     names: tuple[str, ...]
     force: bool = False
     inputs: dict[str, Path] = field(default_factory=dict)
+    retire: tuple[str, ...] = ()
 
     def check(self) -> None:
         """Raise :class:`OutputError` (one message) if the folder cannot take the outputs."""
@@ -284,6 +289,9 @@ class OutputFolder:
             for name in written:
                 (out / name).parent.mkdir(parents=True, exist_ok=True)
                 os.replace(staging / name, out / name)
+            for name in self.retire:
+                if name not in new and _is_ours(out / name, old.get(name)):
+                    (out / name).unlink()
             kept = {n: e for n, e in old.items() if n not in new and _is_ours(out / n, e)}
             _write_manifest(out, {**kept, **new})
         except OutputError:
@@ -305,6 +313,7 @@ def check_output_folder(
     *,
     force: bool = False,
     inputs: Inputs | None = None,
+    retire: Iterable[str] = (),
 ) -> OutputFolder:
     """Check, before any work, that ``names`` can be written into the folder ``path``.
 
@@ -320,6 +329,9 @@ def check_output_folder(
     inputs : mapping, optional
         Role -> path of every input of the run (plan file, climate file, observed flow...);
         never replaced, whatever ``force`` says.
+    retire : iterable of str, optional
+        coveryield's own earlier outputs that this run does not write; removed when writing
+        (only if unchanged since coveryield wrote them).
 
     Returns
     -------
@@ -336,6 +348,7 @@ def check_output_folder(
         names=tuple(names),
         force=bool(force),
         inputs={role: Path(p) for role, p in (inputs or {}).items() if p is not None},
+        retire=tuple(retire),
     )
     target.check()
     return target

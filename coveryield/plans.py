@@ -1,10 +1,11 @@
 """Plan files: the catchment, its zones, extra covers and the land-use plans to compare.
 
-A plan file is TOML with four sections::
+A plan file is TOML with these sections::
 
     [catchment]                    # name, area_km2, latitude_deg, elevation_m, climate, ...
     [[zones]]                      # one table per zone: name, area_share, rain_factor, soil, ...
     [covers.young-pine]            # optional: new covers derived from a built-in one
+    [adjustments]                  # optional: catchment-wide factors (coveryield.adjustments)
     [plans.current]                # the baseline plan (required); then any other plans
     upper = { pasture = 0.7, forest = 0.3 }
 
@@ -29,6 +30,7 @@ from typing import Any, Literal, get_args, get_origin
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, ValidationInfo, field_validator
 
+from coveryield.adjustments import Adjustments
 from coveryield.covers import BUILTIN_COVERS, Cover, derive_cover
 from coveryield.errors import OutputError, PlanFileError
 from coveryield.soils import (
@@ -53,7 +55,7 @@ BASELINE_PLAN = "current"
 #: Shares (zone area shares, cover shares within a zone) must sum to 1 within this [-].
 SHARE_TOLERANCE = 1e-6
 #: The sections a plan file may contain.
-SECTIONS = ("catchment", "zones", "covers", "plans")
+SECTIONS = ("catchment", "zones", "covers", "plans", "adjustments")
 #: Cover parameters a derived cover may override (everything except its name and base).
 COVER_PARAMETERS = tuple(f for f in Cover.model_fields if f not in ("name", "base"))
 
@@ -190,6 +192,8 @@ class PlanFile(BaseModel):
         Built-in covers followed by the covers the file derives, in file order.
     plans : dict
         Plan name -> zone name -> cover name -> share of the zone's area [-].
+    adjustments : Adjustments
+        Catchment-wide factors applied to every tile (all 1 unless the file sets them).
     """
 
     model_config = ConfigDict(frozen=True, extra="forbid")
@@ -199,6 +203,7 @@ class PlanFile(BaseModel):
     zones: tuple[ZoneSpec, ...]
     covers: dict[str, Cover]
     plans: dict[str, dict[str, dict[str, float]]]
+    adjustments: Adjustments = Adjustments()
 
     def zone(self, name: str) -> ZoneSpec:
         """Return the zone called ``name``; a :class:`PlanFileError` lists the zones if none."""
@@ -307,6 +312,9 @@ class PlanFile(BaseModel):
         for name, cover in self.derived_covers.items():
             lines += ["", f"[covers.{_key(name)}]", f"base = {_toml_value(cover.base)}"]
             lines += [f"{k} = {_toml_value(v)}" for k, v in _cover_overrides(cover).items()]
+        if not self.adjustments.is_default:
+            lines += ["", "[adjustments]"]
+            lines += [f"{k} = {_toml_value(v)}" for k, v in self.adjustments.toml_items().items()]
         for plan_name in self.plan_names:
             lines += ["", f"[plans.{_key(plan_name)}]"]
             lines += [f"{_key(zone)} = {_toml_value(shares)}"
@@ -383,11 +391,12 @@ def plan_from_dict(data: Mapping[str, Any], *, source: str | Path) -> PlanFile:
     catchment = _read_catchment(data, source.parent, problems)
     zones = _read_zones(data, problems)
     covers = _read_covers(data, problems)
+    adjustments = _read_adjustments(data, problems)
     plans = _read_plans(data, zones, covers, problems)
     if problems:
         raise PlanFileError(_problem_message(source, problems))
     return PlanFile(source=source, catchment=catchment, zones=tuple(zones), covers=covers,
-                    plans=plans)
+                    plans=plans, adjustments=adjustments)
 
 
 def _read_catchment(data, base_dir: Path, problems: list[Problem]) -> CatchmentSpec | None:
@@ -403,6 +412,19 @@ def _read_catchment(data, base_dir: Path, problems: list[Problem]) -> CatchmentS
     except ValidationError as exc:
         problems += _pydantic_problems(exc, CatchmentSpec, "catchment")
         return None
+
+
+def _read_adjustments(data, problems: list[Problem]) -> Adjustments:
+    """Read the optional [adjustments] table (defaults when absent or invalid; problems noted)."""
+    section = data.get("adjustments", {})
+    if not isinstance(section, Mapping):
+        problems.append(("adjustments", section, "expected an [adjustments] table"))
+        return Adjustments()
+    try:
+        return Adjustments.model_validate(section)
+    except ValidationError as exc:
+        problems += _pydantic_problems(exc, Adjustments, "adjustments")
+        return Adjustments()
 
 
 def _read_zones(data, problems: list[Problem]) -> list[ZoneSpec] | None:

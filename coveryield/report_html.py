@@ -255,6 +255,46 @@ def _tile_table(result: Comparison) -> str:
     return "<table>" + head + "".join(rows) + "</table>"
 
 
+def _band_cell(central: float, band: tuple[float, float, float], signed: bool = True) -> str:
+    fmt = _signed if signed else _num
+    return _td(f"{fmt(central)} <small>({fmt(band[0])} to {fmt(band[2])})</small>")
+
+
+def _band_section(result: Comparison) -> list[str]:
+    """Headlines with their ensemble bands (nothing without an ensemble)."""
+    if result.ensemble is None:
+        return []
+    from coveryield.comparison import ENSEMBLE_MEANING
+
+    e = result.ensemble
+    head = (
+        "<tr><th>plan</th><th>mean annual yield<br>mm/yr</th><th>change against current<br>"
+        "mm/yr</th><th>change in the driest 10 % of years<br>mm/yr</th></tr>"
+    )
+    rows = []
+    for i, name in enumerate(result.plan_names):
+        o = result.outcome(name)
+        b = result.bands(result.plan_file.plans[name])
+        cells = [_td(_swatch(i) + _esc(name), "name"), _band_cell(o.mean_yield_mm,
+                                                                  b["mean_yield_mm"], False)]
+        if name == "current":
+            cells += [_td("baseline", "name"), _td("")]
+        else:
+            c = result.change(o)
+            cells += [_band_cell(c.yield_mm, b["change_mm"]),
+                      _band_cell(c.dry10_mm, b["dry_year_change_mm"])]
+        rows.append("<tr>" + "".join(cells) + "</tr>")
+    varied = ", ".join(f"<code>{_esc(d.name)}</code> {d.low:.3g}–{d.high:.3g}"
+                       for d in e.design.dimensions)
+    return [
+        "<h2>Uncertainty bands</h2>",
+        "<table>" + head + "".join(rows) + "</table>",
+        f'<p class="note">Central figure (the plan file\'s parameters), then in brackets the 5th '
+        f"to 95th percentile over {e.n_members} parameter sets drawn by Latin hypercube "
+        f"(seed {_esc(e.seed)}), uniformly over: {varied}. {_esc(ENSEMBLE_MEANING)}</p>",
+    ]
+
+
 # ---- charts --------------------------------------------------------------------------------
 
 
@@ -368,8 +408,12 @@ def _change_chart(fig, result: Comparison) -> None:
     for j, name in enumerate(names):
         colour, _, _, hatch = _style(j + 1)
         c = result.change(result.outcome(name))
-        bars = ((-width / 2, c.yield_mm, colour), (width / 2, c.dry10_mm, "white"))
-        for offset, value, fill in bars:
+        bands = result.bands(result.plan_file.plans[name])
+        bars = (
+            (-width / 2, c.yield_mm, colour, bands.get("change_mm")),
+            (width / 2, c.dry10_mm, "white", bands.get("dry_year_change_mm")),
+        )
+        for offset, value, fill, band in bars:
             ax.bar(
                 x[j] + offset,
                 value,
@@ -379,6 +423,16 @@ def _change_chart(fig, result: Comparison) -> None:
                 hatch=hatch if fill == "white" else None,
                 linewidth=1.2,
             )
+            if band is not None:  # 5-95 % of the ensemble; the bar is the central figure
+                ax.errorbar(
+                    x[j] + offset + 0.3 * width,  # beside the bar's value label
+                    value,
+                    yerr=[[max(value - band[0], 0.0)], [max(band[2] - value, 0.0)]],
+                    fmt="none",
+                    ecolor="#222222",
+                    elinewidth=1.0,
+                    capsize=4,
+                )
             ax.annotate(
                 _signed(value),
                 (x[j] + offset, value),
@@ -452,7 +506,12 @@ def _charts(result: Comparison) -> list[tuple[str, str]]:
             _change_chart,
             (9.0, 3.3),
             "Change in mean annual yield against current (solid bars) and over the driest 10 % of "
-            "years (hatched bars); negative = less water.",
+            "years (hatched bars); negative = less water."
+            + (
+                " Error bars: 5th to 95th percentile over the parameter ensemble."
+                if result.ensemble is not None
+                else ""
+            ),
         ),
     ]
     out = []
@@ -550,6 +609,7 @@ def render_report(result: Comparison) -> str:
         f"{usual} is usual; \u26a0 marks a plan outside that range or more than "
         f"{CROSSCHECK_CHANGE_TOLERANCE_PCT:.0f} points away from current's offset (then the "
         "model and the curve disagree about the plan's change).</p>",
+        *_band_section(result),
         "<h2>Low flows</h2>",
         _low_flow_table(result),
         '<p class="note">7Q: the mean over the complete years of each year\'s lowest 7-day '

@@ -10,6 +10,7 @@ import math
 import os
 from collections.abc import Mapping
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from coveryield.comparison import CAUTION, YIELD_DEFINITION, Comparison
 from coveryield.output_folder import (
@@ -21,9 +22,13 @@ from coveryield.output_folder import (
 from coveryield.physics.curves import CROSSCHECK_TYPICAL_OFFSET_PCT, ZHANG_CURVE_SENTENCE
 from coveryield.report_html import render_report
 
-__all__ = ["OUTPUT_FILES", "comparison_table", "write_outputs", "write_new_folder"]
+__all__ = ["OUTPUT_FILES", "comparison_table", "output_files", "write_outputs", "write_new_folder"]
 
-#: Files written by :func:`write_outputs`, in order (the folder's manifest comes on top).
+if TYPE_CHECKING:
+    import pandas as pd
+
+#: Files written by :func:`write_outputs` in every run, in order (the folder's manifest comes on
+#: top).
 OUTPUT_FILES = (
     "annual.csv",
     "summary.json",
@@ -33,7 +38,15 @@ OUTPUT_FILES = (
     "tiles.csv",
     "README.txt",
     "report.html",
+    "daily_flow.csv",
 )
+#: Written with an ensemble only (``compare --ensemble N``).
+ENSEMBLE_FILE = "ensemble.csv"
+
+
+def output_files(*, ensemble: bool) -> tuple[str, ...]:
+    """Files :func:`write_outputs` writes: :data:`OUTPUT_FILES`, and ``ensemble.csv`` if asked."""
+    return OUTPUT_FILES + ((ENSEMBLE_FILE,) if ensemble else ())
 
 
 #: Decimals kept in the output files per unit suffix of a name: flows to 0.1 L/s, depths to
@@ -169,9 +182,10 @@ def comparison_table(result: Comparison) -> str:
         f"same cover mix; {low:+.0f} to {high:+.0f} % is usual for this model. * marks a plan "
         "outside that range or more than 6 points away from current's offset.",
         ZHANG_CURVE_SENTENCE,
-        "",
-        f"CAUTION: {CAUTION}",
     ]
+    if result.ensemble is not None:
+        lines += ["", *band_lines(result)]
+    lines += ["", f"CAUTION: {CAUTION}"]
     return "\n".join(lines)
 
 
@@ -222,6 +236,42 @@ def _low_flow_lines(result: Comparison) -> list[str]:
     return lines
 
 
+def band_text(central: float, low: float, high: float, digits: int = 0,
+              signed: bool = True) -> str:
+    """Format a figure with its band, e.g. ``−48 (−61 to −33)`` (the minus sign is U+2212)."""
+    def fmt(value: float) -> str:
+        return _signed(value, digits) if signed else f"{value:,.{digits}f}"
+
+    return f"{fmt(central)} ({fmt(low)} to {fmt(high)})"
+
+
+def band_lines(result: Comparison) -> list[str]:
+    """Lines giving each plan's headline figures with their 5-95 % ensemble band [mm/yr]."""
+    e = result.ensemble
+    lines = [
+        f"Bands: 5th to 95th percentile over {e.n_members} parameter sets (Latin hypercube, "
+        f"seed {e.seed}); central figures use the plan file's parameters. mm/yr.",
+        f"{'plan':<24}{'mean yield':>24}{'change':>24}{'change in dry years':>26}",
+    ]
+    for name in result.plan_names:
+        o = result.outcome(name)
+        b = result.bands(result.plan_file.plans[name])
+        mean = band_text(o.mean_yield_mm, *_ends(b["mean_yield_mm"]), signed=False)
+        row = f"{name[:23]:<24}{mean:>24}"
+        if name != "current":
+            c = result.change(o)
+            row += (f"{band_text(c.yield_mm, *_ends(b['change_mm'])):>24}"
+                    f"{band_text(c.dry10_mm, *_ends(b['dry_year_change_mm'])):>26}")
+        lines.append(row)
+    lines.append("A band shows how far the model's answer moves with its parameters; it is not a "
+                 "confidence interval for the real catchment.")
+    return lines
+
+
+def _ends(values: tuple[float, float, float]) -> tuple[float, float]:
+    return values[0], values[2]
+
+
 def _readme_text(result: Comparison) -> str:
     return "\n".join(
         [
@@ -237,8 +287,20 @@ def _readme_text(result: Comparison) -> str:
             " offset %",
             "tiles.csv         the same per zone and cover (tile), with mean rain and ET0",
             "report.html       one-page report with charts (self-contained; open in a browser)",
+            "daily_flow.csv    routed streamflow at the outlet per plan and day, m3/s",
             f"{MANIFEST_NAME}  what coveryield wrote here, with checksums; --force replaces",
             "                  only these files, and only while unchanged",
+        ]
+        + (
+            [
+                "ensemble.csv      one row per parameter set and plan: headline figures (mm/yr)",
+                "                  and the parameter values drawn; the bands in summary.json",
+                "                  (_p05, _p50, _p95) are percentiles over these rows",
+            ]
+            if result.ensemble is not None
+            else []
+        )
+        + [
             "",
             YIELD_DEFINITION,
             "Values are rounded to their unit's precision (flows 0.0001 m3/s, depths 0.01 mm).",
@@ -247,6 +309,18 @@ def _readme_text(result: Comparison) -> str:
             "",
         ]
     )
+
+
+def daily_flow_table(result: Comparison) -> pd.DataFrame:
+    """Routed streamflow at the outlet, long format: ``date``, ``plan``, ``flow_m3s`` [m3 s-1]."""
+    import pandas as pd
+
+    frames = [
+        pd.DataFrame({"date": result.tiles.dates.strftime("%Y-%m-%d"), "plan": name,
+                      "flow_m3s": result.outcome(name).flow_m3s.to_numpy()})
+        for name in result.plan_names
+    ]
+    return pd.concat(frames, ignore_index=True)
 
 
 def _write_all(result: Comparison, folder: Path) -> None:
@@ -260,12 +334,17 @@ def _write_all(result: Comparison, folder: Path) -> None:
     rounded_frame(result.cover_crosscheck_table()).to_csv(folder / "tiles.csv", index=False)
     (folder / "README.txt").write_text(_readme_text(result))
     (folder / "report.html").write_text(render_report(result), encoding="utf-8")
+    daily_flow_table(result).to_csv(folder / "daily_flow.csv", index=False, float_format="%.5f")
+    if result.ensemble is not None:
+        result.ensemble_table().to_csv(folder / ENSEMBLE_FILE, index=False, float_format="%.4f")
 
 
-def _declared(target: OutputFolder | str | os.PathLike, force: bool, inputs) -> OutputFolder:
+def _declared(target: OutputFolder | str | os.PathLike, force: bool, inputs,
+              *, ensemble: bool) -> OutputFolder:
     if isinstance(target, OutputFolder):
         return target
-    return check_output_folder(target, OUTPUT_FILES, force=force, inputs=inputs)
+    return check_output_folder(target, output_files(ensemble=ensemble), force=force,
+                               inputs=inputs, retire=() if ensemble else (ENSEMBLE_FILE,))
 
 
 def write_outputs(
@@ -307,5 +386,5 @@ def write_outputs(
     """
     if inputs is None:
         inputs = result.plan_file.input_files()
-    target = _declared(out_dir, force, inputs)
+    target = _declared(out_dir, force, inputs, ensemble=result.ensemble is not None)
     return target.write(lambda folder: _write_all(result, folder))

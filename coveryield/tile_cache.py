@@ -347,6 +347,7 @@ def key_text(plan_file) -> str:
         "catchment": catchment,
         "zones": zones,
         "covers": covers,
+        "adjustments": plan_file.adjustments.model_dump(mode="json"),
     }
     return json.dumps(inputs, sort_keys=True, separators=(",", ":"))
 

@@ -25,30 +25,50 @@ def add_parser(subparsers) -> None:
         help="simulate the tiles even if the tile cache holds them, and store nothing there "
         "(see `coveryield cache`)",
     )
+    parser.add_argument(
+        "--ensemble",
+        metavar="N",
+        type=int,
+        help="also run N parameter sets drawn by Latin hypercube from the covers' documented "
+        "ranges and give every headline a 5-95 %% band (100-200 is a good size)",
+    )
+    parser.add_argument(
+        "--seed", metavar="S", type=int, default=None,
+        help="seed of the ensemble's draws: the same seed gives the same bands (default: random)",
+    )
     parser.set_defaults(run=run)
 
 
 def run(args: argparse.Namespace) -> int:
     """Compare the plans, print the table, optionally write the outputs."""
     from coveryield.comparison import compare
+    from coveryield.errors import CoveryieldError
     from coveryield.output_folder import MANIFEST_NAME
     from coveryield.plans import load_plan
-    from coveryield.reports import OUTPUT_FILES, comparison_table, write_outputs
+    from coveryield.reports import ENSEMBLE_FILE, comparison_table, output_files, write_outputs
 
+    if args.ensemble is not None and args.ensemble < 2:
+        raise CoveryieldError(f"--ensemble {args.ensemble}: expected at least 2 parameter sets "
+                              "(100-200 give stable 5-95 % bands)")
+    if args.seed is not None and args.ensemble is None:
+        raise CoveryieldError("--seed: only used with --ensemble N")
     plan_file = load_plan(args.plan)
-    target = checked_out_folder(args, OUTPUT_FILES, plan_file.input_files())
+    names = output_files(ensemble=args.ensemble is not None)
+    target = checked_out_folder(args, names, plan_file.input_files(),
+                                retire=() if args.ensemble else (ENSEMBLE_FILE,))
     cache = None if args.no_cache else _tile_cache()
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         try:
-            result = compare(plan_file, progress=sys.stderr.isatty(), cache=cache)
+            result = compare(plan_file, progress=sys.stderr.isatty(), cache=cache,
+                             ensemble=args.ensemble, seed=args.seed)
         finally:
             print_warnings(caught)
     print(comparison_table(result))
     if target is not None:
         out = write_outputs(result, target)
         print(
-            f"\nwrote {len(OUTPUT_FILES)} files to {out}/: {', '.join(OUTPUT_FILES)} "
+            f"\nwrote {len(names)} files to {out}/: {', '.join(names)} "
             f"(each listed with its checksum in {MANIFEST_NAME})"
         )
     return 0

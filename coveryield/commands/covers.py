@@ -75,6 +75,20 @@ def cover_lines(covers: dict) -> list[str]:
     for name in SHOWN:
         unit, typical, source = PARAMETER_INFO[name]
         lines.append(f"  {name} [{unit}]: {typical}. Source: {source}.")
+    return lines + ensemble_range_lines()
+
+
+def ensemble_range_lines() -> list[str]:
+    """List the numeric ranges `compare --ensemble` draws from, per built-in cover, with sources."""
+    from coveryield.covers import PARAMETER_INFO, PARAMETER_RANGES
+
+    lines = ["", "Ensemble ranges (compare --ensemble N draws uniformly within them; a derived "
+             "cover takes its base's range relative to the base's value):"]
+    for cover, ranges in PARAMETER_RANGES.items():
+        for name, spread in ranges.items():
+            unit = PARAMETER_INFO[name][0]
+            lines.append(f"  {cover}.{name} [{unit}]: {spread.low:g} to {spread.high:g}. "
+                         f"Source: {spread.source}.")
     return lines
 
 

@@ -17,11 +17,13 @@ import os
 from collections.abc import Iterable, Mapping
 
 
-def add_out_arguments(parser: argparse.ArgumentParser, what: str) -> None:
-    """Add ``--out DIR`` (``what`` says what goes there) and ``--force``."""
+def add_out_arguments(parser: argparse.ArgumentParser, what: str, *,
+                      required: bool = False) -> None:
+    """Add ``--out DIR`` (``what`` says what goes there; ``required`` or not) and ``--force``."""
     parser.add_argument(
         "--out",
         metavar="DIR",
+        required=required,
         help=f"write {what} into DIR (a new or empty folder; checked before any work)",
     )
     parser.add_argument(
@@ -36,8 +38,13 @@ def checked_out_folder(
     args: argparse.Namespace,
     names: Iterable[str],
     inputs: Mapping[str, str | os.PathLike],
+    *,
+    retire: Iterable[str] = (),
 ):
     """Check ``args.out`` for ``names`` now; return the checked folder, or None without --out.
+
+    ``retire`` names coveryield's own earlier outputs this run does not write (removed on
+    writing when unchanged, see :class:`coveryield.output_folder.OutputFolder`).
 
     Raises
     ------
@@ -48,4 +55,4 @@ def checked_out_folder(
         return None
     from coveryield.output_folder import check_output_folder
 
-    return check_output_folder(args.out, names, force=args.force, inputs=inputs)
+    return check_output_folder(args.out, names, force=args.force, inputs=inputs, retire=retire)

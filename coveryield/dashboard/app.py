@@ -21,6 +21,7 @@ from coveryield.dashboard.cards import Headline
 from coveryield.dashboard.charts import Charts
 from coveryield.dashboard.exports import CAUTION
 from coveryield.dashboard.state import DashboardState
+from coveryield.dashboard.uncertainty import EnsemblePanel
 from coveryield.dashboard.views import ErrorArea, Guard, ManagerControls, ShareControls
 from coveryield.serve import PLAN_ENV, READ_ONLY_ENV, START_PLAN_ENV  # light module, no widgets
 
@@ -72,6 +73,8 @@ class Dashboard(widgets.VBox):
         The choices and results; set them from Python to drive the page.
     controls, headline, charts, errors : views
         The parts of the page; ``manager`` is None in read-only mode.
+    uncertainty : EnsemblePanel
+        Estimates bands on the headlines from a parameter ensemble, with a progress bar.
     """
 
     def __init__(self, source: Any, *, read_only: bool = False, plan_name: str | None = None,
@@ -87,7 +90,9 @@ class Dashboard(widgets.VBox):
         self.charts = Charts(self.state, self.guard, charts)
         self.manager = None if self.read_only else ManagerControls(
             self.state, self.guard, self.plan_path)
+        self.uncertainty = EnsemblePanel(self.state, self.guard)
         left = [self.controls.widget] + ([self.manager.widget] if self.manager else [])
+        left.append(self.uncertainty.widget)
         super().__init__(
             [
                 self._header(comparison),

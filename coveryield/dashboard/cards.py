@@ -63,6 +63,22 @@ class Card:
         return (f'<span style="font-size:22px;font-weight:600;color:{self.state.edited_colour}">'
                 f"{text}</span>")
 
+    def band(self, key: str, signed_figure: bool = True) -> str:
+        """`` (−61 to −33)``: the 5-95 % band of a headline, or nothing without an ensemble.
+
+        ``key`` is one of ``state.bands`` (``mean_yield_mm``, ``change_mm``,
+        ``dry_year_change_mm``) [mm yr-1].
+        """
+        if key not in self.state.bands:
+            return ""
+        low, _, high = self.state.bands[key]
+        if low == high:  # e.g. no change from current in any member: nothing to show
+            return ""
+        fmt = (lambda v: signed(v, "", 0)) if signed_figure else (lambda v: f"{v:,.0f}")
+        return (f' <span class="cy-band" style="font-size:15px;font-weight:400;'
+                f'color:{palette.MUTED}" title="5th to 95th percentile over the parameter '
+                f'ensemble">({fmt(low)} to {fmt(high)})</span>')
+
     def update(self) -> None:
         """Redraw heading and figures from the state."""
         self.head.value = (
@@ -84,6 +100,7 @@ class YieldCard(Card):
         edited, base = self.state.outcome, self.state.baseline
         return (
             self.big(f"{edited.mean_yield_mm:,.1f} mm/yr")
+            + self.band("mean_yield_mm", signed_figure=False)
             + f" <span {SMALL}>({edited.mean_yield_ml:,.0f} ML/yr)</span>",
             f"<span {SMALL}>current: {base.mean_yield_mm:,.1f} mm/yr "
             f"({base.mean_yield_ml:,.0f} ML/yr)</span>",
@@ -103,7 +120,7 @@ class ChangeCard(Card):
     def figures(self) -> tuple[str, str]:  # noqa: D102
         change = self.state.change
         return (
-            self.big(signed(change.yield_mm, "mm/yr")),
+            self.big(signed(change.yield_mm, "mm/yr")) + self.band("change_mm"),
             f"<span {SMALL}>{signed(change.yield_pct, '%')}, "
             f"{signed(change.yield_ml, 'ML/yr', 0)}; low flow Q95 "
             f"{signed(change.q95_pct, '%')}</span>",
@@ -120,7 +137,7 @@ class DryYearsCard(Card):
         change, comparison = self.state.change, self.state.comparison
         years = ", ".join(str(y) for y in comparison.dry_years)
         return (
-            self.big(signed(change.dry10_mm, "mm/yr")),
+            self.big(signed(change.dry10_mm, "mm/yr")) + self.band("dry_year_change_mm"),
             f"<span {SMALL}>mean change in {years} (driest first); in the driest year, "
             f"{comparison.dry_years[0]}: {signed(change.driest_year_mm, 'mm')}</span>",
         )
@@ -202,7 +219,8 @@ class Headline:
         self.widget = widgets.VBox([c.widget for c in self.cards.values()],
                                    layout=widgets.Layout(flex="1 1 380px", max_width="640px",
                                                          margin="0 0 0 16px"))
-        state.observe(guard("show the headline figures")(self.update), names="outcome")
+        state.observe(guard("show the headline figures")(self.update),
+                      names=["outcome", "bands"])
         self.update()
 
     def card(self, key: str) -> Card:

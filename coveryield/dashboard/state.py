@@ -227,6 +227,10 @@ class DashboardState(HasTraits):
     outcome, change
         :class:`PlanOutcome` of the edited plan and its :class:`PlanChange` against ``current``;
         ``outcome`` is assigned last, so observing it sees ``shares`` and ``change`` up to date.
+    bands : dict
+        With a parameter ensemble: ``mean_yield_mm``, ``change_mm``, ``dry_year_change_mm`` ->
+        (p05, p50, p95) of the edited plan [mm yr-1], a weighted sum per member (no daily
+        loop); empty without one. Assigned with ``outcome``.
     error : str
         Short message about the last failed action; empty when all is well.
     """
@@ -236,6 +240,7 @@ class DashboardState(HasTraits):
     shares = Dict()
     held = List(Unicode())
     change = AnyTrait(allow_none=True)
+    bands = Dict()
     outcome = AnyTrait(allow_none=True)
     error = Unicode("")
 
@@ -358,12 +363,32 @@ class DashboardState(HasTraits):
         self.held = [*held, cover] if hold else held
 
     def _publish(self, shares: dict[str, dict[str, float]], outcome: Any) -> None:
-        """Assign new shares and their outcome, notifying observers once the three agree."""
+        """Assign new shares and their outcome, notifying observers once they all agree."""
         change = self.comparison.change(outcome)
+        bands = self.comparison.bands(engine_shares(shares)) if self.has_ensemble else {}
         with self.hold_trait_notifications():
             self.shares = shares
             self.change = change
+            self.bands = bands
             self.outcome = outcome
+
+    @property
+    def has_ensemble(self) -> bool:
+        """Whether the comparison carries a parameter ensemble (bands on the headlines)."""
+        return getattr(self.comparison, "ensemble", None) is not None
+
+    def attach_ensemble(self, ensemble: Any) -> None:
+        """Give the comparison a parameter ensemble and show the bands of the edited shares.
+
+        Parameters
+        ----------
+        ensemble : coveryield.uncertainty.ensemble.EnsembleResults
+            Every member's tiles, simulated once for the same tiles as the comparison.
+        """
+        if tuple(ensemble.tiles) != tuple(self.comparison.tiles.tiles):
+            raise ValueError("the ensemble was simulated for other tiles than this comparison")
+        self.comparison.ensemble = ensemble
+        self._publish(self.shares, self.outcome)
 
 
 def engine_shares(shares: Mapping[str, Mapping[str, float]]) -> dict[str, dict[str, float]]:

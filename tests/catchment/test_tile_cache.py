@@ -172,7 +172,8 @@ def _forbidden(*args, **kwargs):
 
 @pytest.mark.parametrize(
     "change",
-    ["climate value", "zone rain factor", "cover parameter", "covers used", "package source"],
+    ["climate value", "zone rain factor", "cover parameter", "covers used", "package source",
+     "adjustments"],
 )
 def test_every_input_that_decides_the_tiles_changes_the_key(tmp_path, cache, monkeypatch, change):
     base = write_plan(tmp_path / "base")
@@ -188,6 +189,8 @@ def test_every_input_that_decides_the_tiles_changes_the_key(tmp_path, cache, mon
     elif change == "covers used":
         changed = write_plan(tmp_path / "other", extra_plan='[plans.crops]\n'
                              'hill = { crop = 1.0 }\nflat = { pasture = 1.0 }')
+    elif change == "adjustments":  # catchment-wide factors, e.g. from `coveryield calibrate`
+        changed = write_plan(tmp_path / "other", extra_plan="[adjustments]\nroot_zone_factor = 1.2")
     else:
         monkeypatch.setattr(tile_cache, "package_source_sha256", lambda: "edited source")
         changed = base
