@@ -4,9 +4,10 @@ What is fitted (:data:`FIT_PARAMETERS`, each within a documented range):
 
 * ``surface_resistance_factor`` and ``root_zone_factor`` (:mod:`coveryield.adjustments`): they
   change the tiles, so each trial value re-runs the daily loop of the `current` plan's tiles;
-* ``recession_days`` (``catchment.recession_days``): it only routes the yield to streamflow, so
-  for each trial of the factors it is fitted at once on the tiles already simulated (a profile
-  over the routing parameters; Brent's bounded method).
+* ``recession_days`` and ``quickflow_recession_days`` (``[catchment]``): they only route the
+  yield to streamflow (drainage through the groundwater store, quickflow through the fast
+  store), so for each trial of the factors they are fitted at once on the tiles already
+  simulated (a profile over the routing parameters; Nelder–Mead in two dimensions).
 
 The objective is KGE′ (Kling et al. 2012) of daily flow on the calibration period. The search
 works in log space (each range maps to 0..1): a Latin hypercube screening of the factors (seeded:
@@ -118,10 +119,16 @@ class FitParameter:
 FIT_PARAMETERS: tuple[FitParameter, ...] = (
     *(FitParameter(name, "adjustments", info.low, info.high, "-", info.acts_on, info.why)
       for name, info in FACTORS.items()),
-    FitParameter("recession_days", "catchment", 1.0, 365.0, "d",
-                 "the recession constant of the linear store that routes yield to streamflow",
-                 "from a store that empties within days (flashy, shallow soils) to one that "
-                 "holds a year's drainage (deep groundwater); common practice, no source"),
+    FitParameter("recession_days", "catchment", 5.0, 365.0, "d",
+                 "the recession constant of the groundwater store that routes drainage and the "
+                 "open-water balance to streamflow",
+                 "from a store that empties within a week or two (shallow, fractured rock) to "
+                 "one that holds a year's drainage (deep groundwater); common practice, no "
+                 "source"),
+    FitParameter("quickflow_recession_days", "catchment", 0.3, 10.0, "d",
+                 "the recession constant of the fast store that routes quickflow to streamflow",
+                 "storm runoff of small catchments passes within hours to a few days; common "
+                 "practice, no source"),
 )
 
 

@@ -26,6 +26,7 @@ import pandas as pd
 
 from coveryield.catchment import (
     complete_years,
+    daily_leaf_area,
     plan_tiles,
     tile_forcing,
     tile_parameters,
@@ -208,11 +209,24 @@ def simulate_ensemble(
                            years=np.asarray(year_values)[keep], annual_yield_mm=out)
 
 
+def _member_leaf_area(leaf_areas, parts, n_days):
+    """Daily leaf area of a chunk (n_days, n_members * n_tiles) [m2 m-2], or None if constant.
+
+    A member whose covers all keep their leaf area all year gets its tiles' own (drawn) values.
+    """
+    if all(lai is None for lai in leaf_areas):
+        return None
+    blocks = [np.broadcast_to(p.leaf_area_index, (n_days, len(p.leaf_area_index)))
+              if lai is None else lai for lai, p in zip(leaf_areas, parts, strict=True)]
+    return np.ascontiguousarray(np.hstack(blocks))
+
+
 def _run_chunk(plan_file, design, values, climates, et0_by_zone, tiles, year_codes, keep):
     """Annual yield (members, kept years, tiles) of one chunk of members."""
     n_days, n_tiles, n_members = len(year_codes), len(tiles), len(values)
     arrays = tuple(np.empty((n_days, n_tiles * n_members)) for _ in range(4))
-    parts = []
+    dates = next(iter(climates.values())).daily.index
+    parts, leaf_areas = [], []
     for j, (_, row) in enumerate(values.iterrows()):
         member = design.member_plan(plan_file, row)
         columns = slice(j * n_tiles, (j + 1) * n_tiles)
@@ -222,7 +236,9 @@ def _run_chunk(plan_file, design, values, climates, et0_by_zone, tiles, year_cod
                                strict=True):
             wide[:, columns] = block
         parts.append(tile_parameters(member, tiles))
+        leaf_areas.append(daily_leaf_area(member, tiles, dates))  # crops follow their season
     run = simulate_tiles(*arrays, _concat_parameters(parts), year_codes.astype(np.int64),
+                         lai=_member_leaf_area(leaf_areas, parts, n_days),
                          keep_daily_yield=False)
     yield_mm = run.annual.yield_mm[keep]  # (n_years, n_members * n_tiles)
     return yield_mm.reshape(len(yield_mm), n_members, n_tiles).transpose(1, 0, 2)

@@ -22,10 +22,16 @@ from coveryield.uncertainty.calibration import (
 )
 
 #: The "true" parameters of the synthetic observed flow.
-TRUTH = {"surface_resistance_factor": 1.3, "root_zone_factor": 0.8, "recession_days": 20.0}
+TRUTH = {"surface_resistance_factor": 1.3, "root_zone_factor": 0.8, "recession_days": 20.0,
+         "quickflow_recession_days": 4.0}
 #: Recovery tolerance: each fitted value within 10 % of the truth (our choice: the flow carries
 #: 10 % multiplicative noise, and the two factors partly trade off against each other).
 TOLERANCE = 0.10
+#: Looser for the fast store's constant (our choice, measured): daily noise raises the observed
+#: flow's variability, which KGE′'s variability term rewards with a flashier or slower fast store
+#: (with the other three at their true values, KGE′ of the noisy record is best near 2 d, not 4 d),
+#: so only its order of magnitude is identifiable from noisy daily flow.
+TOLERANCE_BY_NAME = {"quickflow_recession_days": 0.5}
 
 
 def _current_flow(plan_file) -> pd.Series:
@@ -58,8 +64,9 @@ def fitted(small_plan, small_climate, synthetic):
 
 def test_calibration_recovers_the_known_parameters(fitted):
     for p in fitted.parameters:
+        tolerance = TOLERANCE_BY_NAME.get(p["name"], TOLERANCE)
         assert p["start"] != pytest.approx(TRUTH[p["name"]], rel=TOLERANCE)  # it had to move
-        assert p["value"] == pytest.approx(TRUTH[p["name"]], rel=TOLERANCE), p
+        assert p["value"] == pytest.approx(TRUTH[p["name"]], rel=tolerance), p
 
 
 def test_validation_kge_above_0_9(fitted):

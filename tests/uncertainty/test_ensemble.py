@@ -206,3 +206,21 @@ def test_no_bands_without_an_ensemble(small_plan_path, tmp_path):
     assert not any(key.endswith("_p05") for key in summary["plans"]["plant"])
     assert not (out / "ensemble.csv").exists()
     assert "Uncertainty bands" not in (out / "report.html").read_text()
+
+
+def test_collapsed_members_follow_a_crops_seasonal_leaf_area(tmp_path):
+    # a crop's leaf area follows its season in the central run (daily LAI); members must use the
+    # same daily path, or a zero-width ensemble would not reproduce the central figure
+    from tests.uncertainty.conftest import write_small_catchment
+
+    path = write_small_catchment(tmp_path, last_year=1994)
+    path.write_text(path.read_text() + '\n[plans.crops]\nall = { pasture = 0.2, crop = 0.8 }\n')
+    plan = coveryield.load_plan(path)
+    result = coveryield.compare(plan)
+    design = EnsembleDesign.for_plan(plan).scaled(0.0)
+    ensemble = simulate_ensemble(plan, 2, seed=3, design=design)
+    collapsed = Comparison(plan, result.tiles, ensemble=ensemble)
+    central = _central(result, "crops")
+    for key, (p05, _, p95) in collapsed.bands(plan.plans["crops"]).items():
+        assert p05 == pytest.approx(central[key], abs=1e-9), key
+        assert p95 == pytest.approx(central[key], abs=1e-9), key
