@@ -19,7 +19,13 @@ from os import PathLike
 import numpy as np
 import pandas as pd
 
-from coveryield.catchment import MixedSeries, TileResults, mix_tiles, simulate_catchment
+from coveryield.catchment import (
+    MixedSeries,
+    TileResults,
+    mix_tiles,
+    plan_climate,
+    simulate_catchment,
+)
 from coveryield.physics.curves import CROSSCHECK_TOLERANCE
 from coveryield.plans import PlanFile, load_plan, validate_shares
 
@@ -192,11 +198,16 @@ class Comparison:
         The catchment, zones, covers and plans.
     tiles : TileResults
         Every tile simulated once (see :func:`coveryield.catchment.simulate_catchment`).
+    climate : Climate, optional
+        The climate record the tiles were simulated on; kept so that growing stands
+        (:meth:`timeline`) need not read it again.
     """
 
-    def __init__(self, plan_file: PlanFile, tiles: TileResults):
+    def __init__(self, plan_file: PlanFile, tiles: TileResults, climate=None):
         self.plan_file = plan_file
         self.tiles = tiles
+        self.climate = climate
+        self._stands = None
         rain = pd.Series(
             tiles.annual["rain_mm"] @ tiles.weights(plan_file.plans["current"]), index=tiles.years
         )
@@ -306,6 +317,79 @@ class Comparison:
             q95_m3s=d_q95,
             q95_pct=_pct(d_q95, base.q95_m3s),
         )
+
+    # ---- years after planting --------------------------------------------------------------
+
+    def timeline(self, plans=None, *, years: int = 30, start_year: int | None = None,
+                 schedules=None, progress: bool = False):
+        """Follow plans year by year after planting, against ``current`` on the same weather.
+
+        Each year is a weighted sum of the tiles simulated once and of growing stands' stage
+        tiles (simulated once on first use; see :mod:`coveryield.stands`), so a new schedule
+        or horizon never re-runs the daily loop for stands already met.
+
+        Parameters
+        ----------
+        plans : str or list of str, optional
+            Plans to follow (default: every plan but ``current``).
+        years : int
+            Length of the timeline [yr]; the record's complete years are cycled in order when
+            it is shorter.
+        start_year : int, optional
+            Calendar year of the first year, a label only (default: the record's first
+            complete year).
+        schedules : dict of str -> coveryield.schedules.Schedule, optional
+            Schedules to use instead of the file's (checked as in a plan file); a plan without
+            a schedule is made all at once in year 1.
+        progress : bool
+            Show progress on stderr while new stands are simulated.
+
+        Returns
+        -------
+        coveryield.timeline.Timeline
+            Per plan, a table by year: yield, change against ``current`` [mm/yr, %, ML/yr],
+            the mature plan's change on the same weather, planted area and stand age.
+
+        Raises
+        ------
+        coveryield.errors.PlanFileError
+            Unknown plan, bad schedule, or a planting year outside the timeline.
+        """
+        from coveryield.timeline import build_timeline
+
+        return build_timeline(self, plans, years=years, start_year=start_year,
+                              schedules=schedules, progress=progress)
+
+    def stand_results(self, keys, *, progress: bool = False):
+        """Stage tiles of the given stands, simulating only those not simulated before.
+
+        Parameters
+        ----------
+        keys : iterable of coveryield.stands.StandKey
+            (zone, planted cover, young-state cover) of each stand needed.
+        progress : bool
+            Show progress on stderr while new stands are simulated.
+
+        Returns
+        -------
+        coveryield.stands.StandResults
+            Holding at least the stands asked for.
+        """
+        from coveryield.stands import StandResults, simulate_stands
+
+        keys = list(dict.fromkeys(keys))
+        known = self._stands.keys if self._stands is not None else ()
+        missing = [k for k in keys if k not in known]
+        if missing:
+            if self.climate is None:
+                self.climate = plan_climate(self.plan_file)
+            new = simulate_stands(self.plan_file, missing, climate=self.climate,
+                                  progress=progress)
+            self._stands = new if self._stands is None else self._stands.merged(new)
+        if self._stands is None:  # no growing stand needed at all
+            empty = {name: np.zeros((len(self.years), 0, 0)) for name in self.tiles.annual}
+            return StandResults((), np.asarray(self.years), empty)
+        return self._stands
 
     # ---- tables over all plans ------------------------------------------------------------
 
@@ -450,4 +534,6 @@ def compare(plan: PlanFile | str | PathLike, *, progress: bool = False) -> Compa
         For a malformed plan or climate file.
     """
     plan_file = plan if isinstance(plan, PlanFile) else load_plan(plan)
-    return Comparison(plan_file, simulate_catchment(plan_file, progress=progress))
+    climate = plan_climate(plan_file)
+    tiles = simulate_catchment(plan_file, climate=climate, progress=progress)
+    return Comparison(plan_file, tiles, climate=climate)
