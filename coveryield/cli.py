@@ -19,6 +19,7 @@ COMMANDS = {
     "covers": "covers",
     "demo": "demo",
     "serve": "serve",
+    "timeline": "timeline",
 }
 
 
