@@ -444,7 +444,7 @@ def check_fits_timeline(plan_file: PlanFile, plan_name: str, schedule: Schedule,
     for number, p in enumerate(schedule.plantings, start=1):
         where = f"schedules.{_key(plan_name)}.plantings[{number}]"
         if p.last_year > n_years:
-            key, value = ("year", p.year) if p.years == 1 else ("years", p.years)
+            key, value = ("year", p.year) if p.year > n_years else ("years", p.years)
             span = "" if p.years == 1 else f" (plants in years {p.year} to {p.last_year})"
             problems.append((f"{where}.{key}", value, f"planting year outside the timeline of "
                              f"{n_years} years{span}; expected planting years from 1 to "

@@ -91,6 +91,26 @@ def _readme_text(result: Comparison, timeline: Timeline) -> str:
     ])
 
 
+def check_output_folder(out_dir: str | os.PathLike) -> Path:
+    """Refuse an output folder that exists and holds anything (before any work is done).
+
+    Returns
+    -------
+    pathlib.Path
+        The folder, which is new or empty.
+
+    Raises
+    ------
+    coveryield.errors.OutputError
+        If it is a file or a folder that is not empty.
+    """
+    out = Path(out_dir)
+    if out.exists() and (not out.is_dir() or any(out.iterdir())):
+        raise OutputError(f"{out}: exists and is not an empty folder; expected a new or empty "
+                          "folder (nothing was written)")
+    return out
+
+
 def write_timeline_outputs(result: Comparison, timeline: Timeline,
                            out_dir: str | os.PathLike) -> Path:
     """Write ``timeline.csv``, ``report.html`` and ``README.txt`` into a new or empty folder.
@@ -119,10 +139,7 @@ def write_timeline_outputs(result: Comparison, timeline: Timeline,
     """
     from coveryield.report_timeline import render_timeline_report
 
-    out = Path(out_dir)
-    if out.exists() and (not out.is_dir() or any(out.iterdir())):
-        raise OutputError(f"{out}: exists and is not an empty folder; expected a new or empty "
-                          "folder (nothing was written)")
+    out = check_output_folder(out_dir)
     page = render_timeline_report(result, timeline)  # before touching the disk
     table = timeline.table()
 

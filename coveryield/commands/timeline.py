@@ -34,8 +34,14 @@ def add_parser(subparsers) -> None:
 def run(args: argparse.Namespace) -> int:
     """Build the timelines, print the summary, optionally write the outputs."""
     from coveryield.comparison import compare
-    from coveryield.timeline_outputs import timeline_text, write_timeline_outputs
+    from coveryield.timeline_outputs import (
+        check_output_folder,
+        timeline_text,
+        write_timeline_outputs,
+    )
 
+    if args.out:
+        check_output_folder(args.out)  # before any work
     progress = sys.stderr.isatty()
     result = compare(args.plan, progress=progress)
     timeline = result.timeline(args.plans, years=args.years, start_year=args.start_year,
