@@ -69,8 +69,9 @@ class Dashboard(widgets.VBox):
     ----------
     state : DashboardState
         The choices and results; set them from Python to drive the page.
-    controls, headline, charts, errors : views
-        The parts of the page; ``manager`` is None in read-only mode.
+    controls, headline, charts, errors, timeline : views
+        The parts of the page; ``manager`` is None in read-only mode, ``timeline`` (years after
+        planting) None when the file has no plan besides ``current``.
     """
 
     def __init__(self, source: Any, *, read_only: bool = False, plan_name: str = "current",
@@ -86,6 +87,7 @@ class Dashboard(widgets.VBox):
         self.charts = Charts(self.state, self.guard)
         self.manager = None if self.read_only else ManagerControls(
             self.state, self.guard, self.plan_path)
+        self.timeline = _timeline_view(comparison, self.guard)
         left = [self.controls.widget] + ([self.manager.widget] if self.manager else [])
         super().__init__(
             [
@@ -96,6 +98,7 @@ class Dashboard(widgets.VBox):
                               self.headline.widget],
                              layout=widgets.Layout(flex_flow="row wrap", width="100%")),
                 self.charts.widget,
+                *([self.timeline.widget] if self.timeline is not None else []),
                 self._footer(),
             ],
             layout=widgets.Layout(padding="8px 16px", max_width="1280px"),
@@ -134,6 +137,16 @@ class Dashboard(widgets.VBox):
             "(ML; 1 ML = 1000 m\u00b3). Evaporation check: Zhang et al. (2001) curve and Fu's "
             f"form of the Budyko framework. {html.escape(CAUTION)}</div>"
         )
+
+
+def _timeline_view(comparison: Any, guard: Guard) -> Any:
+    """The years-after-planting view, or None when the file has no plan besides current."""
+    if len(comparison.plan_names) < 2:
+        return None
+    from coveryield.dashboard.timeline_state import TimelineState
+    from coveryield.dashboard.timeline_view import TimelineView
+
+    return TimelineView(TimelineState(comparison), guard)
 
 
 def env_read_only(default: bool = False) -> bool:
