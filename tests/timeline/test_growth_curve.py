@@ -67,3 +67,13 @@ def test_growth_refuses_impossible_values():
                 {"start": ""}, {"maturity": 10}):
         with pytest.raises(ValidationError):
             Growth.model_validate(bad)
+
+
+def test_covers_command_shows_the_growth_and_its_source(capsys):
+    from coveryield.cli import main
+
+    assert main(["covers"]) == 0
+    out = capsys.readouterr().out
+    assert "forest: grows after planting" in out
+    assert "95 % grown at 20 yr (p 1.5)" in out
+    assert "Brown et al. (2013)" in out
