@@ -60,8 +60,10 @@ def main() -> None:
     print("demo catchment, 30-year timeline of every plan (two staged programmes), warm")
     print(f"plain comparison (coveryield.compare from the files):     {compare_s * 1e3:8.1f} ms")
     print(f"comparison + 30-year timeline of every plan:              {timeline_s * 1e3:8.1f} ms")
-    print(f"  ratio {ratio:5.2f} x   target <= {TIMELINE_TARGET:.0f} x: "
-          f"{'met' if ratio <= TIMELINE_TARGET else 'NOT met'}")
+    print(
+        f"  ratio {ratio:5.2f} x   target <= {TIMELINE_TARGET:.0f} x: "
+        f"{'met' if ratio <= TIMELINE_TARGET else 'NOT met'}"
+    )
 
     dash = Dashboard(coveryield.compare(plan), read_only=True)
     view = dash.timeline
@@ -73,8 +75,10 @@ def main() -> None:
     for label, times in (("move the year", year_s), ("re-time the programme", retime_s)):
         median, worst = statistics.median(times), max(times)
         verdict = "met" if median < MOVE_TARGET_S else "NOT met"
-        print(f"dashboard, {label:<22} median {median * 1e3:6.1f} ms, worst {worst * 1e3:6.1f} ms "
-              f"over {len(times)} moves   target < {MOVE_TARGET_S * 1e3:.0f} ms: {verdict}")
+        print(
+            f"dashboard, {label:<22} median {median * 1e3:6.1f} ms, worst {worst * 1e3:6.1f} ms "
+            f"over {len(times)} moves   target < {MOVE_TARGET_S * 1e3:.0f} ms: {verdict}"
+        )
 
 
 if __name__ == "__main__":

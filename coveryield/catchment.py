@@ -204,7 +204,7 @@ def curve_evaporation(rain_mean_mm, et0_mean_mm, evap_mean_mm, bases):
 
 
 def plan_climate(plan_file: PlanFile) -> Climate:
-    """The catchment's climate record, read from the file the plan file names.
+    """Read the catchment's climate record from the file the plan file names.
 
     Parameters
     ----------

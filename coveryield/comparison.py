@@ -320,8 +320,15 @@ class Comparison:
 
     # ---- years after planting --------------------------------------------------------------
 
-    def timeline(self, plans=None, *, years: int = 30, start_year: int | None = None,
-                 schedules=None, progress: bool = False):
+    def timeline(
+        self,
+        plans=None,
+        *,
+        years: int = 30,
+        start_year: int | None = None,
+        schedules=None,
+        progress: bool = False,
+    ):
         """Follow plans year by year after planting, against ``current`` on the same weather.
 
         Each year is a weighted sum of the tiles simulated once and of growing stands' stage
@@ -357,8 +364,9 @@ class Comparison:
         """
         from coveryield.timeline import build_timeline
 
-        return build_timeline(self, plans, years=years, start_year=start_year,
-                              schedules=schedules, progress=progress)
+        return build_timeline(
+            self, plans, years=years, start_year=start_year, schedules=schedules, progress=progress
+        )
 
     def stand_results(self, keys, *, progress: bool = False):
         """Stage tiles of the given stands, simulating only those not simulated before.
@@ -383,8 +391,7 @@ class Comparison:
         if missing:
             if self.climate is None:
                 self.climate = plan_climate(self.plan_file)
-            new = simulate_stands(self.plan_file, missing, climate=self.climate,
-                                  progress=progress)
+            new = simulate_stands(self.plan_file, missing, climate=self.climate, progress=progress)
             self._stands = new if self._stands is None else self._stands.merged(new)
         if self._stands is None:  # no growing stand needed at all
             empty = {name: np.zeros((len(self.years), 0, 0)) for name in self.tiles.annual}

@@ -787,7 +787,7 @@ def _plain_words(error: Mapping[str, Any], model: type[BaseModel], loc: list[str
 
 
 def _nested_model(model: type[BaseModel], loc: list[str]) -> type[BaseModel]:
-    """The model a key path leads to (e.g. Growth for ``growth`` in a Cover)."""
+    """Return the model a key path leads to (e.g. Growth for ``growth`` in a Cover)."""
     for part in loc:
         field = model.model_fields.get(part)
         annotation = _without_none(field.annotation) if field is not None else None

@@ -8,8 +8,6 @@ year over the whole catchment; volumes ML per year. Every name from a plan file 
 
 from __future__ import annotations
 
-import numpy as np
-
 from coveryield.comparison import CAUTION, Comparison
 from coveryield.report_html import _CSS, _RC, _esc, _num, _signed, _style, _svg, _swatch, _td
 from coveryield.stands import GROWTH_STAGES
@@ -32,7 +30,8 @@ def _periods(timeline: Timeline) -> list[tuple[int, int, str]]:
     for first, last in SUMMARY_PERIODS:
         end = timeline.n_years if last is None else min(last, timeline.n_years)
         if first <= end:
-            out.append((first, end, f"years {first}\u2013{end}" if end > first else f"year {first}"))
+            label = f"years {first}\u2013{end}" if end > first else f"year {first}"
+            out.append((first, end, label))
     return out
 
 
@@ -64,42 +63,76 @@ def _headline_table(result: Comparison, timeline: Timeline) -> str:
 
 
 def _schedule_table(timeline: Timeline) -> str:
-    head = ("<tr><th>plan</th><th>zone</th><th>cover planted</th><th>replaces</th>"
-            "<th>share of zone<br>per year, %</th><th>planting years</th>"
-            "<th>felled at age<br>years</th><th>harvest year</th></tr>")
+    head = (
+        "<tr><th>plan</th><th>zone</th><th>cover planted</th><th>replaces</th>"
+        "<th>share of zone<br>per year, %</th><th>planting years</th>"
+        "<th>felled at age<br>years</th><th>harvest year</th></tr>"
+    )
     rows = []
     for name, plan in timeline.plans.items():
         if plan.schedule is None:
             continue
         for p in plan.schedule.plantings:
             years = f"{p.year}" if p.years == 1 else f"{p.year}\u2013{p.last_year}"
-            rows.append("<tr>" + "".join([
-                _td(_esc(name), "name"), _td(_esc(p.zone), "name"), _td(_esc(p.cover), "name"),
-                _td(_esc(p.replaces), "name"), _td(_num(100.0 * p.share_each_year, 1)),
-                _td(years), _td(_num(p.rotation_years) if p.rotation_years else "\u2013"),
-                _td(str(p.harvest_year) if p.harvest_year else "\u2013"),
-            ]) + "</tr>")
+            rows.append(
+                "<tr>"
+                + "".join(
+                    [
+                        _td(_esc(name), "name"),
+                        _td(_esc(p.zone), "name"),
+                        _td(_esc(p.cover), "name"),
+                        _td(_esc(p.replaces), "name"),
+                        _td(_num(100.0 * p.share_each_year, 1)),
+                        _td(years),
+                        _td(_num(p.rotation_years) if p.rotation_years else "\u2013"),
+                        _td(str(p.harvest_year) if p.harvest_year else "\u2013"),
+                    ]
+                )
+                + "</tr>"
+            )
     return "<table>" + head + "".join(rows) + "</table>"
 
 
 def _growth_table(result: Comparison, timeline: Timeline) -> str:
     covers = result.plan_file.covers
-    planted = {p.cover for plan in timeline.plans.values() if plan.schedule is not None
-               for p in plan.schedule.plantings if covers[p.cover].growth is not None}
-    head = ("<tr><th>cover</th><th>95 % grown at<br>years</th><th>Chapman–Richards p</th>"
-            "<th>growth at 2 / 5 / 10 / 20 years<br>%</th><th>felled at age<br>years</th>"
-            "<th>young state</th></tr>")
+    planted = {
+        p.cover
+        for plan in timeline.plans.values()
+        if plan.schedule is not None
+        for p in plan.schedule.plantings
+        if covers[p.cover].growth is not None
+    }
+    head = (
+        "<tr><th>cover</th><th>95 % grown at<br>years</th><th>Chapman–Richards p</th>"
+        "<th>growth at 2 / 5 / 10 / 20 years<br>%</th><th>felled at age<br>years</th>"
+        "<th>young state</th></tr>"
+    )
     rows = []
     for name in sorted(planted):
         g = covers[name].growth
         at = " / ".join(f"{100.0 * float(g.fraction(a - 0.5)):.0f}" for a in (2, 5, 10, 20))
-        rows.append("<tr>" + "".join([
-            _td(_esc(name), "name"), _td(_num(g.maturity_years, 1)), _td(_num(g.shape, 2)),
-            _td(at), _td(str(g.rotation_years) if g.rotation_years else "never (unless the "
-                         "schedule says)", "name"),
-            _td(_esc(g.start) if g.start else "the cover replaced if grass, else pasture",
-                "name"),
-        ]) + "</tr>")
+        rows.append(
+            "<tr>"
+            + "".join(
+                [
+                    _td(_esc(name), "name"),
+                    _td(_num(g.maturity_years, 1)),
+                    _td(_num(g.shape, 2)),
+                    _td(at),
+                    _td(
+                        str(g.rotation_years)
+                        if g.rotation_years
+                        else "never (unless the schedule says)",
+                        "name",
+                    ),
+                    _td(
+                        _esc(g.start) if g.start else "the cover replaced if grass, else pasture",
+                        "name",
+                    ),
+                ]
+            )
+            + "</tr>"
+        )
     return "<table>" + head + "".join(rows) + "</table>" if rows else ""
 
 
@@ -111,10 +144,22 @@ def _path_chart(fig, result: Comparison, timeline: Timeline) -> None:
     for name, plan in timeline.plans.items():
         colour, marker, dashes, _ = _style(_plan_index(result, name))
         x = plan.table.index.to_numpy()
-        ax.plot(x, plan.table["change_mm"], color=colour, marker=marker, markersize=3.5,
-                linewidth=1.5, label=f"{name}")
-        ax.axhline(plan.mature_change_mm, color=colour, linestyle=(0, (6, 3)), linewidth=1.0,
-                   label=f"{name}: once mature")
+        ax.plot(
+            x,
+            plan.table["change_mm"],
+            color=colour,
+            marker=marker,
+            markersize=3.5,
+            linewidth=1.5,
+            label=f"{name}",
+        )
+        ax.axhline(
+            plan.mature_change_mm,
+            color=colour,
+            linestyle=(0, (6, 3)),
+            linewidth=1.0,
+            label=f"{name}: once mature",
+        )
     ax.axhline(0.0, color="#222222", linewidth=0.8)
     ax.set_xlim(0.3, timeline.n_years + 0.7)
     ax.set_xlabel(f"years since the start (year 1 = {timeline.start_year})")
@@ -126,8 +171,16 @@ def _share_chart(fig, result: Comparison, timeline: Timeline) -> None:
     ax = fig.add_subplot()
     for name, plan in timeline.plans.items():
         colour, marker, dashes, _ = _style(_plan_index(result, name))
-        ax.plot(plan.table.index, plan.table["share_of_mature_pct"], color=colour,
-                linestyle=dashes, marker=marker, markersize=3.0, linewidth=1.3, label=name)
+        ax.plot(
+            plan.table.index,
+            plan.table["share_of_mature_pct"],
+            color=colour,
+            linestyle=dashes,
+            marker=marker,
+            markersize=3.0,
+            linewidth=1.3,
+            label=name,
+        )
     ax.axhline(100.0, color="#222222", linewidth=0.8)
     ax.axhline(GUIDE_SHARE_PCT, color="#777777", linewidth=0.8, linestyle=":")
     ax.set_xlim(0.3, timeline.n_years + 0.7)
@@ -138,7 +191,7 @@ def _share_chart(fig, result: Comparison, timeline: Timeline) -> None:
 
 
 def _growing(timeline: Timeline) -> dict:
-    """The plans whose schedule plants growing stands."""
+    """Return the plans whose schedule plants growing stands."""
     return {n: p for n, p in timeline.plans.items() if p.table["planted_pct"].max() > 0.0}
 
 
@@ -146,8 +199,15 @@ def _planted_chart(fig, result: Comparison, timeline: Timeline) -> None:
     ax = fig.add_subplot()
     for name, plan in _growing(timeline).items():
         colour, _, dashes, _ = _style(_plan_index(result, name))
-        ax.step(plan.table.index, plan.table["planted_pct"], where="mid", color=colour,
-                linestyle=dashes, linewidth=1.5, label=f"{name}: planted area")
+        ax.step(
+            plan.table.index,
+            plan.table["planted_pct"],
+            where="mid",
+            color=colour,
+            linestyle=dashes,
+            linewidth=1.5,
+            label=f"{name}: planted area",
+        )
     ax.set_xlim(0.3, timeline.n_years + 0.7)
     ax.set_ylim(bottom=0.0)
     ax.set_xlabel(f"years since the start (year 1 = {timeline.start_year})")
@@ -155,15 +215,26 @@ def _planted_chart(fig, result: Comparison, timeline: Timeline) -> None:
     right = ax.twinx()
     for name, plan in _growing(timeline).items():
         colour = _style(_plan_index(result, name))[0]
-        right.plot(plan.table.index, plan.table["mean_stand_age_yr"], color=colour,
-                   linestyle=":", linewidth=1.0, label=f"{name}: mean stand age")
+        right.plot(
+            plan.table.index,
+            plan.table["mean_stand_age_yr"],
+            color=colour,
+            linestyle=":",
+            linewidth=1.0,
+            label=f"{name}: mean stand age",
+        )
     right.set_ylabel("mean stand age [years], dotted")
     right.set_ylim(bottom=0.0)
     right.grid(False)
     handles, labels = ax.get_legend_handles_labels()
     more = right.get_legend_handles_labels()
-    ax.legend(handles + more[0], labels + more[1], loc="upper left", bbox_to_anchor=(1.08, 1.0),
-              fontsize=7.5)
+    ax.legend(
+        handles + more[0],
+        labels + more[1],
+        loc="upper left",
+        bbox_to_anchor=(1.08, 1.0),
+        fontsize=7.5,
+    )
 
 
 def _charts(result: Comparison, timeline: Timeline) -> list[tuple[str, str]]:
@@ -172,14 +243,23 @@ def _charts(result: Comparison, timeline: Timeline) -> list[tuple[str, str]]:
     from matplotlib.figure import Figure
 
     specs = [
-        (_path_chart, "Change in water yield against current, year by year after the start "
-         "(solid, each year on its own weather) and once every stand is mature (dashed: the "
-         "change a comparison of the mature plan reports, mean over the record); negative = less "
-         "water."),
-        (_share_chart, "The same change as a share of the mature plan's change on the same "
-         f"year's weather; dotted guide at {GUIDE_SHARE_PCT:.0f} %. A felling shows as a drop."),
-        (_planted_chart, "Catchment area in growing stands the schedule planted (steps) and "
-         "their mean age (dotted, right axis)."),
+        (
+            _path_chart,
+            "Change in water yield against current, year by year after the start "
+            "(solid, each year on its own weather) and once every stand is mature (dashed: the "
+            "change a comparison of the mature plan reports, mean over the record); "
+            "negative = less water.",
+        ),
+        (
+            _share_chart,
+            "The same change as a share of the mature plan's change on the same "
+            f"year's weather; dotted guide at {GUIDE_SHARE_PCT:.0f} %. A felling shows as a drop.",
+        ),
+        (
+            _planted_chart,
+            "Catchment area in growing stands the schedule planted (steps) and "
+            "their mean age (dotted, right axis).",
+        ),
     ]
     if not _growing(timeline):
         specs = specs[:2]
@@ -200,9 +280,11 @@ def _weather_sentence(timeline: Timeline) -> str:
     record = timeline.record_years
     span = f"{record[0]}\u2013{record[-1]}"
     if timeline.cycles_weather:
-        return (f"Each year takes the weather of one complete year of the record ({span}, "
-                f"{len(record)} years) in order; the timeline is longer, so from year "
-                f"{len(record) + 1} the record's years are used again in the same order.")
+        return (
+            f"Each year takes the weather of one complete year of the record ({span}, "
+            f"{len(record)} years) in order; the timeline is longer, so from year "
+            f"{len(record) + 1} the record's years are used again in the same order."
+        )
     return f"Each year takes the weather of one complete year of the record ({span}), in order."
 
 
@@ -283,9 +365,11 @@ def render_timeline_report(result: Comparison, timeline: Timeline) -> str:
         figures,
         "<h2>Schedules</h2>",
         _schedule_table(timeline),
-        "".join(f'<p class="note"><b>{_esc(n)}</b>: {_esc(p.schedule.description)}</p>'
-                for n, p in timeline.plans.items()
-                if p.schedule is not None and p.schedule.description),
+        "".join(
+            f'<p class="note"><b>{_esc(n)}</b>: {_esc(p.schedule.description)}</p>'
+            for n, p in timeline.plans.items()
+            if p.schedule is not None and p.schedule.description
+        ),
         "<h2>Growth of the planted covers</h2>",
         _growth_table(result, timeline),
         "<h2>Assumptions</h2>",

@@ -59,8 +59,16 @@ if TYPE_CHECKING:  # pragma: no cover
     from coveryield.plans import PlanFile
 
 __all__ = [
-    "Planting", "Schedule", "Cohort", "cohorts", "implicit_schedule", "schedule_for",
-    "check_schedule", "check_fits_timeline", "young_state", "base_shares_by_year",
+    "Planting",
+    "Schedule",
+    "Cohort",
+    "cohorts",
+    "implicit_schedule",
+    "schedule_for",
+    "check_schedule",
+    "check_fits_timeline",
+    "young_state",
+    "base_shares_by_year",
     "FALLBACK_START",
 ]
 
@@ -180,12 +188,14 @@ class Schedule(BaseModel):
         return max(p.last_event_year for p in self.plantings)
 
     def shifted(self, first_year: int) -> Schedule:
-        """The same programme moved so that its first planting falls in ``first_year`` [-]."""
+        """Return the programme moved so that its first planting falls in ``first_year`` [-]."""
         offset = int(first_year) - self.first_year
-        return self._with_each(lambda p: {
-            "year": p.year + offset,
-            "harvest_year": None if p.harvest_year is None else p.harvest_year + offset,
-        })
+        return self._with_each(
+            lambda p: {
+                "year": p.year + offset,
+                "harvest_year": None if p.harvest_year is None else p.harvest_year + offset,
+            }
+        )
 
     def spread_over(self, years: int) -> Schedule:
         """Every entry's total share planted evenly over ``years`` years from its first year.
@@ -198,8 +208,12 @@ class Schedule(BaseModel):
         def respace(p: Planting) -> dict:
             last = p.year + years - 1
             harvest = p.harvest_year if p.harvest_year is None else max(p.harvest_year, last + 1)
-            return {"share": p.total_share, "share_per_year": None, "years": years,
-                    "harvest_year": harvest}
+            return {
+                "share": p.total_share,
+                "share_per_year": None,
+                "years": years,
+                "harvest_year": harvest,
+            }
 
         return self._with_each(respace)
 
@@ -327,8 +341,16 @@ def cohorts(schedule: Schedule, covers: Mapping[str, Cover]) -> list[Cohort]:
         start = young_state(cover, p.replaces, covers) if growth is not None else None
         rotation = p.rotation_years or (growth.rotation_years if growth is not None else None)
         out += [
-            Cohort(p.zone, p.cover, p.replaces, start, p.share_each_year, year,
-                   rotation if start is not None else None, p.harvest_year)
+            Cohort(
+                p.zone,
+                p.cover,
+                p.replaces,
+                start,
+                p.share_each_year,
+                year,
+                rotation if start is not None else None,
+                p.harvest_year,
+            )
             for year in range(p.year, p.last_year + 1)
         ]
     return out
@@ -356,8 +378,9 @@ def base_shares_by_year(
         are not included (they are held by stand tiles).
     """
     years = np.arange(1, n_years + 1)
-    shares = {z: {c: np.full(n_years, float(s)) for c, s in zone.items()}
-              for z, zone in current.items()}
+    shares = {
+        z: {c: np.full(n_years, float(s)) for c, s in zone.items()} for z, zone in current.items()
+    }
     for cohort in planted:
         zone = shares[cohort.zone]
         done = np.where(years >= cohort.planted_year, cohort.share, 0.0)
@@ -369,7 +392,7 @@ def base_shares_by_year(
 
 
 def implicit_schedule(plan_file: PlanFile, plan_name: str) -> Schedule | None:
-    """The schedule of a plan that has none: every change made at once in year 1.
+    """Return the schedule of a plan that has none: every change made at once in year 1.
 
     In each zone, the share every cover gains is taken from the covers that lose share, in
     proportion to what each loses.
@@ -397,16 +420,19 @@ def implicit_schedule(plan_file: PlanFile, plan_name: str) -> Schedule | None:
         for cover, gain in gains.items():
             for replaced, loss in losses.items():
                 share = min(gain * loss / lost, 1.0)
-                plantings.append(Planting(zone=zone, cover=cover, replaces=replaced, share=share,
-                                          year=1))
+                plantings.append(
+                    Planting(zone=zone, cover=cover, replaces=replaced, share=share, year=1)
+                )
     if not plantings:
         return None
-    return Schedule(description="every change made at once in year 1 (no schedule in the file)",
-                    plantings=tuple(plantings))
+    return Schedule(
+        description="every change made at once in year 1 (no schedule in the file)",
+        plantings=tuple(plantings),
+    )
 
 
 def schedule_for(plan_file: PlanFile, plan_name: str) -> Schedule | None:
-    """The file's schedule for a plan, or the implicit all-at-once one (None for no change)."""
+    """Return the file's schedule for a plan, else the all-at-once one (None: no change)."""
     return plan_file.schedules.get(plan_name) or implicit_schedule(plan_file, plan_name)
 
 
@@ -429,8 +455,9 @@ def check_schedule(plan_file: PlanFile, plan_name: str, schedule: Schedule) -> N
         raise PlanFileError(_problem_message(plan_file.source, problems))
 
 
-def check_fits_timeline(plan_file: PlanFile, plan_name: str, schedule: Schedule,
-                        n_years: int) -> None:
+def check_fits_timeline(
+    plan_file: PlanFile, plan_name: str, schedule: Schedule, n_years: int
+) -> None:
     """Check that every planting and harvest year lies inside a timeline of ``n_years`` years.
 
     Raises
@@ -446,12 +473,24 @@ def check_fits_timeline(plan_file: PlanFile, plan_name: str, schedule: Schedule,
         if p.last_year > n_years:
             key, value = ("year", p.year) if p.year > n_years else ("years", p.years)
             span = "" if p.years == 1 else f" (plants in years {p.year} to {p.last_year})"
-            problems.append((f"{where}.{key}", value, f"planting year outside the timeline of "
-                             f"{n_years} years{span}; expected planting years from 1 to "
-                             f"{n_years} (or a longer timeline, --years)"))
+            problems.append(
+                (
+                    f"{where}.{key}",
+                    value,
+                    f"planting year outside the timeline of "
+                    f"{n_years} years{span}; expected planting years from 1 to "
+                    f"{n_years} (or a longer timeline, --years)",
+                )
+            )
         if p.harvest_year is not None and p.harvest_year > n_years:
-            problems.append((f"{where}.harvest_year", p.harvest_year, "harvest year outside "
-                             f"the timeline of {n_years} years; expected 1 to {n_years}"))
+            problems.append(
+                (
+                    f"{where}.harvest_year",
+                    p.harvest_year,
+                    "harvest year outside "
+                    f"the timeline of {n_years} years; expected 1 to {n_years}",
+                )
+            )
     if problems:
         raise PlanFileError(_problem_message(plan_file.source, problems))
 
@@ -467,9 +506,14 @@ def growth_start_problems(covers: Mapping[str, Cover]) -> list:
         if name in BUILTIN_COVERS or start is None or _is_grass(covers.get(start)):
             continue
         grass = [n for n, c in covers.items() if _is_grass(c)]
-        problems.append((f"covers.{_key(name)}.growth.start", start,
-                         "expected a cover that derives from pasture without a crop calendar "
-                         f"(the ground a new stand starts from): {', '.join(grass)}"))
+        problems.append(
+            (
+                f"covers.{_key(name)}.growth.start",
+                start,
+                "expected a cover that derives from pasture without a crop calendar "
+                f"(the ground a new stand starts from): {', '.join(grass)}",
+            )
+        )
     return problems
 
 
@@ -479,11 +523,23 @@ def schedule_problems(name: str, schedule: Schedule, plans: Mapping, covers: Map
 
     where = f"schedules.{_key(name)}"
     if name == "current":
-        return [(where, _absent(), "the baseline has no schedule; a schedule belongs to the plan "
-                 "it leads to from current")]
+        return [
+            (
+                where,
+                _absent(),
+                "the baseline has no schedule; a schedule belongs to the plan "
+                "it leads to from current",
+            )
+        ]
     if name not in plans:
-        return [(where, _absent(), f"no plan of that name; a schedule belongs to the plan it "
-                 f"leads to ({', '.join(p for p in plans if p != 'current')})")]
+        return [
+            (
+                where,
+                _absent(),
+                f"no plan of that name; a schedule belongs to the plan it "
+                f"leads to ({', '.join(p for p in plans if p != 'current')})",
+            )
+        ]
     problems = []
     zones = list(plans["current"])
     for number, p in enumerate(schedule.plantings, start=1):
@@ -491,8 +547,9 @@ def schedule_problems(name: str, schedule: Schedule, plans: Mapping, covers: Map
     if problems:
         return problems
     planted = cohorts(schedule, covers)
-    return (_exceed_problems(where, schedule, planted, plans["current"])
-            or _end_state_problems(name, where, planted, plans))
+    return _exceed_problems(where, schedule, planted, plans["current"]) or _end_state_problems(
+        name, where, planted, plans
+    )
 
 
 def _absent():
@@ -508,15 +565,22 @@ def _reference_problems(where: str, p: Planting, zones: list[str], covers: Mappi
         problems.append((f"{where}.zone", p.zone, f"unknown zone; zones are: {', '.join(zones)}"))
     for key in ("cover", "replaces"):
         if getattr(p, key) not in covers:
-            problems.append((f"{where}.{key}", getattr(p, key), f"unknown cover; known covers: "
-                             f"{known}"))
+            problems.append(
+                (f"{where}.{key}", getattr(p, key), f"unknown cover; known covers: {known}")
+            )
     cover = covers.get(p.cover)
     if cover is not None and cover.growth is None:
         for key in ("rotation_years", "harvest_year"):
             if getattr(p, key) is not None:
-                problems.append((f"{where}.{key}", getattr(p, key), f"{p.cover} does not grow "
-                                 "(no growth trajectory), so it is never felled; expected a cover "
-                                 "that derives from forest with a growth trajectory"))
+                problems.append(
+                    (
+                        f"{where}.{key}",
+                        getattr(p, key),
+                        f"{p.cover} does not grow "
+                        "(no growth trajectory), so it is never felled; expected a cover "
+                        "that derives from forest with a growth trajectory",
+                    )
+                )
     return problems
 
 
@@ -530,12 +594,21 @@ def _exceed_problems(where: str, schedule: Schedule, planted: list[Cohort], curr
             if short.size == 0:
                 continue
             year = int(short[0]) + 1
-            taken = math.fsum(c.share for c in planted if c.zone == zone and c.replaces == cover
-                              and c.planted_year <= year)
-            problems.append((where, _absent(), f"by year {year} the plantings take {taken:.6g} of "
-                             f"zone {zone} from {cover}, but only {taken + series[year - 1]:.6g} "
-                             "was there; shares would exceed the zone (expected at most what "
-                             "the zone holds at the time)"))
+            taken = math.fsum(
+                c.share
+                for c in planted
+                if c.zone == zone and c.replaces == cover and c.planted_year <= year
+            )
+            problems.append(
+                (
+                    where,
+                    _absent(),
+                    f"by year {year} the plantings take {taken:.6g} of "
+                    f"zone {zone} from {cover}, but only {taken + series[year - 1]:.6g} "
+                    "was there; shares would exceed the zone (expected at most what "
+                    "the zone holds at the time)",
+                )
+            )
     return problems
 
 
@@ -553,10 +626,16 @@ def _end_state_problems(name: str, where: str, planted: list[Cohort], plans) -> 
         if all(abs(final[zone].get(c, 0.0) - shares.get(c, 0.0)) <= TOLERANCE for c in covers):
             continue
         reached = {c: round(v, 6) for c, v in final[zone].items() if abs(v) > TOLERANCE}
-        problems.append((where, _absent(), f"after every planting zone {zone} has "
-                         f"{_show(reached)}, but plans.{_key(name)}.{_key(zone)} is "
-                         f"{_show(shares)}; a schedule's plantings must lead from "
-                         "plans.current to the plan of the same name"))
+        problems.append(
+            (
+                where,
+                _absent(),
+                f"after every planting zone {zone} has "
+                f"{_show(reached)}, but plans.{_key(name)}.{_key(zone)} is "
+                f"{_show(shares)}; a schedule's plantings must lead from "
+                "plans.current to the plan of the same name",
+            )
+        )
     return problems
 
 
@@ -564,8 +643,9 @@ def _end_state_problems(name: str, where: str, planted: list[Cohort], plans) -> 
 # reading (called by coveryield.plans)
 
 
-def read_schedules(data: Mapping[str, Any], plans: Mapping, covers: Mapping,
-                   problems: list) -> dict[str, Schedule]:
+def read_schedules(
+    data: Mapping[str, Any], plans: Mapping, covers: Mapping, problems: list
+) -> dict[str, Schedule]:
     """Read the ``[schedules.NAME]`` tables of a plan file, adding any problem to ``problems``.
 
     Parameters
@@ -608,15 +688,21 @@ def _read_one(where: str, raw: Any, problems: list) -> Schedule | None:
 
     items = raw.get("plantings") if isinstance(raw, Mapping) else None
     if not isinstance(items, list) or not items:
-        problems.append((where, raw if not isinstance(raw, Mapping) else _NO_VALUE,
-                         f"expected a [{where}] table with at least one [[{where}.plantings]] "
-                         "entry (zone, cover, replaces, share or share_per_year, year)"))
+        problems.append(
+            (
+                where,
+                raw if not isinstance(raw, Mapping) else _NO_VALUE,
+                f"expected a [{where}] table with at least one [[{where}.plantings]] "
+                "entry (zone, cover, replaces, share or share_per_year, year)",
+            )
+        )
         return None
     found = len(problems)
     for key, value in raw.items():
         if key not in Schedule.model_fields:
-            problems.append((f"{where}.{_key(key)}", value, "unknown key; allowed keys: "
-                             "description, plantings"))
+            problems.append(
+                (f"{where}.{_key(key)}", value, "unknown key; allowed keys: description, plantings")
+            )
     if not isinstance(raw.get("description", ""), str):
         problems.append((f"{where}.description", raw["description"], "expected text"))
     plantings = []

@@ -43,8 +43,15 @@ from coveryield.stands import StandKey, StandResults, stage_weights
 if TYPE_CHECKING:  # pragma: no cover
     from coveryield.comparison import Comparison
 
-__all__ = ["DEFAULT_YEARS", "TIMELINE_COLUMNS", "PlanTimeline", "Timeline", "build_timeline",
-           "plan_timeline", "stand_keys"]
+__all__ = [
+    "DEFAULT_YEARS",
+    "TIMELINE_COLUMNS",
+    "PlanTimeline",
+    "Timeline",
+    "build_timeline",
+    "plan_timeline",
+    "stand_keys",
+]
 
 #: Length of a timeline when none is asked for [yr].
 DEFAULT_YEARS = 30
@@ -52,10 +59,28 @@ DEFAULT_YEARS = 30
 MAX_YEARS = 1000
 #: Columns of :meth:`Timeline.table` (depths mm/yr over the catchment, volumes ML/yr).
 TIMELINE_COLUMNS = (
-    "plan", "year", "years_since_start", "weather_year", "yield_mm", "change_mm", "change_pct",
-    "evap_mm", "rain_mm", "yield_ml", "change_ml", "mature_change_mm", "share_of_mature_pct",
-    "planted_pct", "mean_stand_age_yr", "quickflow_mm", "drainage_mm", "interception_mm",
-    "transpiration_mm", "soil_evap_mm", "open_water_mm", "storage_change_mm",
+    "plan",
+    "year",
+    "years_since_start",
+    "weather_year",
+    "yield_mm",
+    "change_mm",
+    "change_pct",
+    "evap_mm",
+    "rain_mm",
+    "yield_ml",
+    "change_ml",
+    "mature_change_mm",
+    "share_of_mature_pct",
+    "planted_pct",
+    "mean_stand_age_yr",
+    "quickflow_mm",
+    "drainage_mm",
+    "interception_mm",
+    "transpiration_mm",
+    "soil_evap_mm",
+    "open_water_mm",
+    "storage_change_mm",
 )
 #: Columns of a :attr:`PlanTimeline.table` (its index is ``years_since_start``).
 _YEAR_COLUMNS = [c for c in TIMELINE_COLUMNS if c not in ("plan", "years_since_start")]
@@ -96,8 +121,12 @@ class PlanTimeline:
     @property
     def schedule_label(self) -> str:
         """A few words on where the schedule came from."""
-        return {"file": "from the plan file", "at once": "all at once in year 1",
-                "given": "given from Python", "none": "no change"}[self.origin]
+        return {
+            "file": "from the plan file",
+            "at once": "all at once in year 1",
+            "given": "given from Python",
+            "none": "no change",
+        }[self.origin]
 
     def period_change(self, first: int, last: int | None = None) -> tuple[float, float]:
         """Mean change over years ``first``..``last`` and its share of the mature change.
@@ -140,8 +169,14 @@ class Timeline:
         Complete years of the climate record, cycled in order.
     """
 
-    def __init__(self, plans: dict[str, PlanTimeline], current: pd.DataFrame, n_years: int,
-                 start_year: int, record_years: np.ndarray) -> None:
+    def __init__(
+        self,
+        plans: dict[str, PlanTimeline],
+        current: pd.DataFrame,
+        n_years: int,
+        start_year: int,
+        record_years: np.ndarray,
+    ) -> None:
         self.plans = plans
         self.current = current
         self.n_years = n_years
@@ -149,7 +184,7 @@ class Timeline:
         self.record_years = record_years
 
     def __getitem__(self, name: str) -> PlanTimeline:
-        """The timeline of one plan."""
+        """Return the timeline of one plan."""
         return self.plans[name]
 
     @property
@@ -175,7 +210,7 @@ class Timeline:
 
 
 def stand_keys(planted: Iterable[Cohort]) -> list[StandKey]:
-    """The stands (zone, cover, young state) that growing cohorts need, in first-seen order."""
+    """Return the stands (zone, cover, young state) growing cohorts need, first seen first."""
     return list(dict.fromkeys(StandKey(c.zone, c.cover, c.start) for c in planted if c.grows))
 
 
@@ -202,21 +237,41 @@ def build_timeline(
             check_fits_timeline(plan_file, name, chosen[name], n_years)
     planted = {n: cohorts(s, plan_file.covers) if s else [] for n, s in chosen.items()}
     stands = comparison.stand_results(
-        [k for cohort_list in planted.values() for k in stand_keys(cohort_list)],
-        progress=progress)
+        [k for cohort_list in planted.values() for k in stand_keys(cohort_list)], progress=progress
+    )
     first = int(comparison.years[0]) if start_year is None else int(start_year)
     result = {}
     for name in names:
-        result[name] = plan_timeline(comparison, name, chosen[name], planted[name], stands,
-                                     n_years, first, origin=_origin(plan_file, name, chosen[name],
-                                                                    schedules))
-    return Timeline(result, _current_table(comparison, n_years, first), n_years, first,
-                    np.asarray(comparison.years))
+        result[name] = plan_timeline(
+            comparison,
+            name,
+            chosen[name],
+            planted[name],
+            stands,
+            n_years,
+            first,
+            origin=_origin(plan_file, name, chosen[name], schedules),
+        )
+    return Timeline(
+        result,
+        _current_table(comparison, n_years, first),
+        n_years,
+        first,
+        np.asarray(comparison.years),
+    )
 
 
-def plan_timeline(comparison: Comparison, name: str, schedule: Schedule | None,
-                  planted: list[Cohort], stands: StandResults, n_years: int, start_year: int,
-                  *, origin: str = "given") -> PlanTimeline:
+def plan_timeline(
+    comparison: Comparison,
+    name: str,
+    schedule: Schedule | None,
+    planted: list[Cohort],
+    stands: StandResults,
+    n_years: int,
+    start_year: int,
+    *,
+    origin: str = "given",
+) -> PlanTimeline:
     """One plan's timeline from its cohorts: weighted sums of tile and stage-tile years.
 
     Parameters
@@ -251,13 +306,16 @@ def plan_timeline(comparison: Comparison, name: str, schedule: Schedule | None,
     frame["change_ml"] = change * comparison.tiles.area_km2
     frame["mature_change_mm"] = mature
     with np.errstate(divide="ignore", invalid="ignore"):
-        frame["share_of_mature_pct"] = np.where(np.abs(mature) > 1e-9, 100.0 * change / mature,
-                                                np.nan)
+        frame["share_of_mature_pct"] = np.where(
+            np.abs(mature) > 1e-9, 100.0 * change / mature, np.nan
+        )
     frame["planted_pct"], frame["mean_stand_age_yr"] = _stand_area_and_age(
-        comparison, planted, n_years)
+        comparison, planted, n_years
+    )
     overall = comparison.change(comparison.outcome(name))
-    return PlanTimeline(name, schedule, origin, frame[_YEAR_COLUMNS],
-                        overall.yield_mm, overall.yield_pct)
+    return PlanTimeline(
+        name, schedule, origin, frame[_YEAR_COLUMNS], overall.yield_mm, overall.yield_pct
+    )
 
 
 def _origin(plan_file, name: str, schedule: Schedule | None, given) -> str:
@@ -275,16 +333,24 @@ def _plan_names(comparison: Comparison, plans) -> list[str]:
     unknown = [n for n in names if n not in comparison.plan_file.plans or n == "current"]
     if unknown:
         others = ", ".join(n for n in comparison.plan_names if n != "current")
-        raise PlanFileError(f"{comparison.plan_file.source}: no plan {', '.join(map(repr, unknown))}"
-                            f" to follow over the years; plans other than current: {others}")
+        asked = ", ".join(map(repr, unknown))
+        raise PlanFileError(
+            f"{comparison.plan_file.source}: no plan {asked} to follow over the "
+            f"years; plans other than current: {others}"
+        )
     return list(dict.fromkeys(names))
 
 
 def _check_years(years) -> int:
-    if isinstance(years, bool) or not isinstance(years, (int, np.integer)) or not (
-            1 <= years <= MAX_YEARS):
-        raise PlanFileError(f"timeline length {years!r} years: expected a whole number of years "
-                            f"from 1 to {MAX_YEARS}")
+    if (
+        isinstance(years, bool)
+        or not isinstance(years, (int, np.integer))
+        or not (1 <= years <= MAX_YEARS)
+    ):
+        raise PlanFileError(
+            f"timeline length {years!r} years: expected a whole number of years "
+            f"from 1 to {MAX_YEARS}"
+        )
     return int(years)
 
 
@@ -293,13 +359,18 @@ def _weather_index(comparison: Comparison, n_years: int) -> np.ndarray:
     return np.arange(n_years) % len(comparison.years)
 
 
-def _mixed_fluxes(comparison: Comparison, stands: StandResults, planted: list[Cohort],
-                  n_years: int, weather: np.ndarray) -> dict[str, np.ndarray]:
+def _mixed_fluxes(
+    comparison: Comparison,
+    stands: StandResults,
+    planted: list[Cohort],
+    n_years: int,
+    weather: np.ndarray,
+) -> dict[str, np.ndarray]:
     """Each annual flux of the plan in each timeline year [mm over the catchment]."""
     tiles = comparison.tiles
     base = _tile_weights_by_year(
-        tiles, base_shares_by_year(comparison.plan_file.plans["current"], planted, n_years),
-        n_years)
+        tiles, base_shares_by_year(comparison.plan_file.plans["current"], planted, n_years), n_years
+    )
     stand = np.zeros((n_years, len(stands.keys), stands.annual["rain_mm"].shape[2]))
     years = np.arange(1, n_years + 1)
     covers = comparison.plan_file.covers
@@ -327,17 +398,24 @@ def _tile_weights_by_year(tiles, shares: dict, n_years: int) -> np.ndarray:
                 continue
             k = index.get((zone, cover))
             if k is None:
-                raise PlanFileError(f"zone {zone!r}, cover {cover!r}: no such tile was "
-                                    f"simulated; known covers: {', '.join(tiles.covers)}")
+                raise PlanFileError(
+                    f"zone {zone!r}, cover {cover!r}: no such tile was "
+                    f"simulated; known covers: {', '.join(tiles.covers)}"
+                )
             weights[:, k] += tiles.zone_area_share[zone] * series
     return weights
 
 
-def _frame(comparison: Comparison, fluxes: dict, weather: np.ndarray,
-           start_year: int) -> pd.DataFrame:
+def _frame(
+    comparison: Comparison, fluxes: dict, weather: np.ndarray, start_year: int
+) -> pd.DataFrame:
     n_years = len(weather)
-    evap = (fluxes["interception_mm"] + fluxes["transpiration_mm"] + fluxes["soil_evap_mm"]
-            + fluxes["open_water_mm"])
+    evap = (
+        fluxes["interception_mm"]
+        + fluxes["transpiration_mm"]
+        + fluxes["soil_evap_mm"]
+        + fluxes["open_water_mm"]
+    )
     yield_mm = fluxes["quickflow_mm"] + fluxes["drainage_mm"]
     frame = pd.DataFrame(
         {
@@ -354,8 +432,9 @@ def _frame(comparison: Comparison, fluxes: dict, weather: np.ndarray,
     return frame
 
 
-def _stand_area_and_age(comparison: Comparison, planted: list[Cohort],
-                        n_years: int) -> tuple[np.ndarray, np.ndarray]:
+def _stand_area_and_age(
+    comparison: Comparison, planted: list[Cohort], n_years: int
+) -> tuple[np.ndarray, np.ndarray]:
     """Catchment area in growing stands planted by the schedule [%] and their mean age [yr]."""
     years = np.arange(1, n_years + 1)
     area = np.zeros(n_years)

@@ -10,21 +10,15 @@ from pathlib import Path
 
 from coveryield.comparison import CAUTION, Comparison
 from coveryield.errors import OutputError
-from coveryield.reports import write_new_folder
+from coveryield.reports import _signed, write_new_folder
 from coveryield.timeline import SUMMARY_PERIODS, Timeline
 
 #: Files written by :func:`write_timeline_outputs`.
 TIMELINE_FILES = ("timeline.csv", "report.html", "README.txt")
 
 
-def _signed(value: float, digits: int = 1) -> str:
-    if value != value:  # NaN
-        return "n/a"
-    return f"{value:+,.{digits}f}".replace("-", "\u2212")
-
-
 def timeline_text(result: Comparison, timeline: Timeline) -> str:
-    """A plain-text summary of every plan's path after planting.
+    """Summarise every plan's path after planting as plain text.
 
     Parameters
     ----------
@@ -43,12 +37,14 @@ def timeline_text(result: Comparison, timeline: Timeline) -> str:
     lines = [
         f"{spec.name}: {timeline.n_years} years from {timeline.start_year} (year 1); weather of "
         f"{record[0]}-{record[-1]} in order"
-        + (", cycled (the record is shorter than the timeline)" if timeline.cycles_weather
-           else ""),
+        + (", cycled (the record is shorter than the timeline)" if timeline.cycles_weather else ""),
         "",
     ]
-    periods = [(a, timeline.n_years if b is None else min(b, timeline.n_years))
-               for a, b in SUMMARY_PERIODS if a <= timeline.n_years]
+    periods = [
+        (a, timeline.n_years if b is None else min(b, timeline.n_years))
+        for a, b in SUMMARY_PERIODS
+        if a <= timeline.n_years
+    ]
     labels = [f"yrs {a}-{b}" for a, b in periods]
     header = f"{'plan':<24}{'schedule':<22}{'mature':>9}" + "".join(f"{x:>15}" for x in labels)
     units = f"{'':<24}{'':<22}{'mm/yr':>9}" + f"{'mm/yr (% mat.)':>15}" * len(periods)
@@ -73,22 +69,25 @@ def timeline_text(result: Comparison, timeline: Timeline) -> str:
 
 
 def _readme_text(result: Comparison, timeline: Timeline) -> str:
-    return "\n".join([
-        f"coveryield timeline: {result.plan_file.catchment.name}",
-        f"plan file: {result.plan_file.source}",
-        f"{timeline.n_years} years from {timeline.start_year}; weather years "
-        f"{timeline.record_years[0]}-{timeline.record_years[-1]} in order"
-        + (", cycled" if timeline.cycles_weather else ""),
-        "",
-        "timeline.csv  per plan (current first) and year: yield, evaporation and rain (mm over",
-        "              the whole catchment), change against current on the same weather (mm, %,",
-        "              ML), the mature plan's change on that weather, area in growing stands (%)",
-        "              and their mean age (years), and the other water-balance terms (mm)",
-        "report.html   one-page report with charts (self-contained; open in a browser)",
-        "",
-        f"CAUTION: {CAUTION}",
-        "",
-    ])
+    return "\n".join(
+        [
+            f"coveryield timeline: {result.plan_file.catchment.name}",
+            f"plan file: {result.plan_file.source}",
+            f"{timeline.n_years} years from {timeline.start_year}; weather years "
+            f"{timeline.record_years[0]}-{timeline.record_years[-1]} in order"
+            + (", cycled" if timeline.cycles_weather else ""),
+            "",
+            "timeline.csv  per plan (current first) and year: yield, evaporation and rain",
+            "              (mm over the whole catchment), change against current on the same",
+            "              weather (mm, %, ML), the mature plan's change on that weather, area in",
+            "              growing stands (%) and their mean age (years), and the other",
+            "              water-balance terms (mm)",
+            "report.html   one-page report with charts (self-contained; open in a browser)",
+            "",
+            f"CAUTION: {CAUTION}",
+            "",
+        ]
+    )
 
 
 def check_output_folder(out_dir: str | os.PathLike) -> Path:
@@ -106,13 +105,16 @@ def check_output_folder(out_dir: str | os.PathLike) -> Path:
     """
     out = Path(out_dir)
     if out.exists() and (not out.is_dir() or any(out.iterdir())):
-        raise OutputError(f"{out}: exists and is not an empty folder; expected a new or empty "
-                          "folder (nothing was written)")
+        raise OutputError(
+            f"{out}: exists and is not an empty folder; expected a new or empty "
+            "folder (nothing was written)"
+        )
     return out
 
 
-def write_timeline_outputs(result: Comparison, timeline: Timeline,
-                           out_dir: str | os.PathLike) -> Path:
+def write_timeline_outputs(
+    result: Comparison, timeline: Timeline, out_dir: str | os.PathLike
+) -> Path:
     """Write ``timeline.csv``, ``report.html`` and ``README.txt`` into a new or empty folder.
 
     Everything is written into a hidden folder beside ``out_dir`` first and appears only when

@@ -69,7 +69,9 @@ def cover_lines(covers: dict) -> list[str]:
         growth = covers[n].growth
         if growth is None:
             continue
-        rotation = f"felled at {growth.rotation_years} yr" if growth.rotation_years else "not felled"
+        rotation = (
+            f"felled at {growth.rotation_years} yr" if growth.rotation_years else "not felled"
+        )
         start = growth.start or "the cover replaced if grass, else pasture"
         lines.append(
             f"{n}: grows after planting along a Chapman-Richards curve, 95 % grown at "

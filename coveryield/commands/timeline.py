@@ -1,4 +1,4 @@
-"""``coveryield timeline PLAN.toml [--years N] --out DIR``: water yield year by year after planting."""
+"""``coveryield timeline PLAN.toml [--years N] --out DIR``: yield year by year after planting."""
 
 from __future__ import annotations
 
@@ -18,16 +18,32 @@ def add_parser(subparsers) -> None:
         "timeline is longer than the record.",
     )
     parser.add_argument("plan", metavar="PLAN.toml", help="plan file (TOML)")
-    parser.add_argument("--years", type=int, default=30, metavar="N",
-                        help="length of the timeline in years (default 30)")
-    parser.add_argument("--start-year", type=int, metavar="YEAR",
-                        help="calendar year of year 1, a label only (default: the first "
-                        "complete year of the climate record)")
-    parser.add_argument("--plan", dest="plans", action="append", metavar="NAME",
-                        help="follow only this plan (repeat for several; default: all)")
-    parser.add_argument("--out", metavar="DIR",
-                        help="write timeline.csv, report.html and README.txt into DIR (a new or "
-                        "empty folder)")
+    parser.add_argument(
+        "--years",
+        type=int,
+        default=30,
+        metavar="N",
+        help="length of the timeline in years (default 30)",
+    )
+    parser.add_argument(
+        "--start-year",
+        type=int,
+        metavar="YEAR",
+        help="calendar year of year 1, a label only (default: the first "
+        "complete year of the climate record)",
+    )
+    parser.add_argument(
+        "--plan",
+        dest="plans",
+        action="append",
+        metavar="NAME",
+        help="follow only this plan (repeat for several; default: all)",
+    )
+    parser.add_argument(
+        "--out",
+        metavar="DIR",
+        help="write timeline.csv, report.html and README.txt into DIR (a new or empty folder)",
+    )
     parser.set_defaults(run=run)
 
 
@@ -44,8 +60,9 @@ def run(args: argparse.Namespace) -> int:
         check_output_folder(args.out)  # before any work
     progress = sys.stderr.isatty()
     result = compare(args.plan, progress=progress)
-    timeline = result.timeline(args.plans, years=args.years, start_year=args.start_year,
-                               progress=progress)
+    timeline = result.timeline(
+        args.plans, years=args.years, start_year=args.start_year, progress=progress
+    )
     print(timeline_text(result, timeline))
     if args.out:
         out = write_timeline_outputs(result, timeline, args.out)

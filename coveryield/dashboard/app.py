@@ -140,7 +140,7 @@ class Dashboard(widgets.VBox):
 
 
 def _timeline_view(comparison: Any, guard: Guard) -> Any:
-    """The years-after-planting view, or None when the file has no plan besides current."""
+    """Build the years-after-planting view (None when the file has no plan besides current)."""
     if len(comparison.plan_names) < 2:
         return None
     from coveryield.dashboard.timeline_state import TimelineState

@@ -101,8 +101,10 @@ class TimelineState(HasTraits):
         return 1, first + MAX_SHIFT
 
     def edited_schedule(self) -> Schedule | None:
-        """The plan's schedule re-timed by :attr:`first_year`, :attr:`spread_years` and
-        :attr:`felling_age` (None if the plan equals ``current``)."""
+        """Return the plan's schedule re-timed by the first year, spread and felling age.
+
+        None if the plan equals ``current``.
+        """
         schedule = self.planned
         if schedule is None:
             return None
@@ -142,8 +144,7 @@ class TimelineState(HasTraits):
         try:
             schedule = self.edited_schedule()
             given = {self.plan_name: schedule} if self._retimed() else None
-            result = self.comparison.timeline(self.plan_name, years=self.n_years,
-                                              schedules=given)
+            result = self.comparison.timeline(self.plan_name, years=self.n_years, schedules=given)
         except Exception:
             self._restore()
             raise
@@ -168,10 +169,12 @@ class TimelineState(HasTraits):
     def _retimed(self) -> bool:
         planned = self.planned
         return planned is not None and (
-            self.spread_years != AS_PLANNED or self.felling_age != AS_PLANNED
-            or self.first_year != planned.first_year)
+            self.spread_years != AS_PLANNED
+            or self.felling_age != AS_PLANNED
+            or self.first_year != planned.first_year
+        )
 
     def row(self) -> Any:
-        """The table row of the year looked at (a pandas Series)."""
+        """Return the table row of the year looked at (a pandas Series)."""
         table = self.timeline.table
         return table.loc[min(max(self.year, 1), len(table))]

@@ -43,46 +43,89 @@ class TimelineView:
         self._syncing = False
         label = {"description_width": "170px"}
         wide = widgets.Layout(width="400px")
-        self.plan_picker = widgets.Dropdown(options=state.plan_names, value=state.plan_name,
-                                            description="Plan", style=label, layout=wide)
+        self.plan_picker = widgets.Dropdown(
+            options=state.plan_names,
+            value=state.plan_name,
+            description="Plan",
+            style=label,
+            layout=wide,
+        )
         low, high = state.first_year_range
-        self.first_year = widgets.IntSlider(value=state.first_year, min=low, max=high,
-                                            description="First planting in year", style=label,
-                                            continuous_update=False, layout=wide)
+        self.first_year = widgets.IntSlider(
+            value=state.first_year,
+            min=low,
+            max=high,
+            description="First planting in year",
+            style=label,
+            continuous_update=False,
+            layout=wide,
+        )
         self.spread = widgets.Dropdown(
             options=[("as planned", AS_PLANNED), ("all in one year", 1)]
             + [(f"over {n} years", n) for n in range(2, MAX_SPREAD + 1)],
-            value=AS_PLANNED, description="Each planting spread", style=label, layout=wide)
+            value=AS_PLANNED,
+            description="Each planting spread",
+            style=label,
+            layout=wide,
+        )
         self.felling = widgets.Dropdown(
             options=[("as planned", AS_PLANNED), ("never", NEVER)]
             + [(f"at {age} years", age) for age in FELLING_AGES],
-            value=AS_PLANNED, description="Fell and replant", style=label, layout=wide)
-        self.year = widgets.IntSlider(value=state.year, min=1, max=state.n_years,
-                                      description="Year shown", style=label,
-                                      continuous_update=True, layout=wide)
+            value=AS_PLANNED,
+            description="Fell and replant",
+            style=label,
+            layout=wide,
+        )
+        self.year = widgets.IntSlider(
+            value=state.year,
+            min=1,
+            max=state.n_years,
+            description="Year shown",
+            style=label,
+            continuous_update=True,
+            layout=wide,
+        )
         self.year.add_class("cy-timeline-year")
-        self.figures = widgets.HTML(layout=widgets.Layout(flex="1 1 360px", max_width="620px",
-                                                          margin="0 0 0 16px"))
+        self.figures = widgets.HTML(
+            layout=widgets.Layout(flex="1 1 360px", max_width="620px", margin="0 0 0 16px")
+        )
         self.figures.add_class("cy-timeline-figures")
         self._build_chart()
-        controls = widgets.VBox([self.plan_picker, self.first_year, self.spread, self.felling,
-                                 self.year], layout=widgets.Layout(width="420px"))
-        self.widget = widgets.VBox([
-            widgets.HTML(f'<div style="font-size:18px;font-weight:600;color:{palette.INK};'
-                         'margin-top:12px">Years after planting</div>'
-                         f'<div style="color:{palette.MUTED};font-size:13px;max-width:1100px">'
-                         f"{html.escape(INTRO)}</div>"),
-            widgets.HBox([controls, self.figures],
-                         layout=widgets.Layout(flex_flow="row wrap", width="100%")),
-            self.figure,
-            legend({"this plan, year by year": palette.EDITED,
-                    "mature plan, same weather": palette.MUTED,
-                    "mature plan, mean over the record (dashed)": palette.INK}, line=True),
-        ])
+        controls = widgets.VBox(
+            [self.plan_picker, self.first_year, self.spread, self.felling, self.year],
+            layout=widgets.Layout(width="420px"),
+        )
+        self.widget = widgets.VBox(
+            [
+                widgets.HTML(
+                    f'<div style="font-size:18px;font-weight:600;color:{palette.INK};'
+                    'margin-top:12px">Years after planting</div>'
+                    f'<div style="color:{palette.MUTED};font-size:13px;max-width:1100px">'
+                    f"{html.escape(INTRO)}</div>"
+                ),
+                widgets.HBox(
+                    [controls, self.figures],
+                    layout=widgets.Layout(flex_flow="row wrap", width="100%"),
+                ),
+                self.figure,
+                legend(
+                    {
+                        "this plan, year by year": palette.EDITED,
+                        "mature plan, same weather": palette.MUTED,
+                        "mature plan, mean over the record (dashed)": palette.INK,
+                    },
+                    line=True,
+                ),
+            ]
+        )
         self.widget.add_class("cy-timeline")
         self.plan_picker.observe(guard("follow the plan")(self._plan_picked), names="value")
-        for control, trait in ((self.first_year, "first_year"), (self.spread, "spread_years"),
-                               (self.felling, "felling_age"), (self.year, "year")):
+        for control, trait in (
+            (self.first_year, "first_year"),
+            (self.spread, "spread_years"),
+            (self.felling, "felling_age"),
+            (self.year, "year"),
+        ):
             control.observe(guard("re-time the planting")(self._setter(trait)), names="value")
         state.observe(guard("draw the years after planting")(self.update), names="timeline")
         state.observe(guard("show the year")(self.show_year), names="year")
@@ -92,21 +135,50 @@ class TimelineView:
     def _build_chart(self) -> None:
         sx, sy = bqplot.LinearScale(), bqplot.LinearScale()
         self.scales = (sx, sy)
-        self.path = bqplot.Lines(x=[1.0], y=[[0.0], [0.0]], scales={"x": sx, "y": sy},
-                                 colors=[palette.EDITED, palette.MUTED], stroke_width=2,
-                                 marker="circle", marker_size=14,
-                                 labels=["this plan", "mature plan, same weather"])
-        self.mature = bqplot.Lines(x=[0.0, 1.0], y=[0.0, 0.0], scales={"x": sx, "y": sy},
-                                   colors=[palette.INK], line_style="dashed", stroke_width=1.5)
-        self.zero = bqplot.Lines(x=[0.0, 1.0], y=[0.0, 0.0], scales={"x": sx, "y": sy},
-                                 colors=["#BBBBBB"], stroke_width=1)
-        self.rule = bqplot.Lines(x=[1.0, 1.0], y=[0.0, 0.0], scales={"x": sx, "y": sy},
-                                 colors=[palette.CURRENT], stroke_width=2)
+        self.path = bqplot.Lines(
+            x=[1.0],
+            y=[[0.0], [0.0]],
+            scales={"x": sx, "y": sy},
+            colors=[palette.EDITED, palette.MUTED],
+            stroke_width=2,
+            marker="circle",
+            marker_size=14,
+            labels=["this plan", "mature plan, same weather"],
+        )
+        self.mature = bqplot.Lines(
+            x=[0.0, 1.0],
+            y=[0.0, 0.0],
+            scales={"x": sx, "y": sy},
+            colors=[palette.INK],
+            line_style="dashed",
+            stroke_width=1.5,
+        )
+        self.zero = bqplot.Lines(
+            x=[0.0, 1.0],
+            y=[0.0, 0.0],
+            scales={"x": sx, "y": sy},
+            colors=["#BBBBBB"],
+            stroke_width=1,
+        )
+        self.rule = bqplot.Lines(
+            x=[1.0, 1.0],
+            y=[0.0, 0.0],
+            scales={"x": sx, "y": sy},
+            colors=[palette.CURRENT],
+            stroke_width=2,
+        )
         self.figure = bqplot.Figure(
             marks=[self.zero, self.mature, self.path, self.rule],
-            axes=[bqplot.Axis(scale=sx, label="Years since the start", tick_format="d"),
-                  bqplot.Axis(scale=sy, orientation="vertical", label="Change against current "
-                              "(mm/yr)", tick_format=",d", label_offset="50px")],
+            axes=[
+                bqplot.Axis(scale=sx, label="Years since the start", tick_format="d"),
+                bqplot.Axis(
+                    scale=sy,
+                    orientation="vertical",
+                    label="Change against current (mm/yr)",
+                    tick_format=",d",
+                    label_offset="50px",
+                ),
+            ],
             title="Change in water yield after planting",
             fig_margin={"top": 50, "bottom": 55, "left": 70, "right": 20},
             layout=widgets.Layout(width="100%", height="340px"),
@@ -117,6 +189,7 @@ class TimelineView:
         def set_trait(change: dict) -> None:
             if not self._syncing:
                 setattr(self.state, trait, int(change["new"]))
+
         return set_trait
 
     def _plan_picked(self, change: dict) -> None:
@@ -147,8 +220,9 @@ class TimelineView:
         mature = float(self.state.timeline.mature_change_mm)
         with self.path.hold_sync():
             self.path.x = x
-            self.path.y = np.vstack([table["change_mm"].to_numpy(float),
-                                     table["mature_change_mm"].to_numpy(float)])
+            self.path.y = np.vstack(
+                [table["change_mm"].to_numpy(float), table["mature_change_mm"].to_numpy(float)]
+            )
         with self.mature.hold_sync():
             self.mature.x, self.mature.y = ends, [mature, mature]
         with self.zero.hold_sync():
@@ -176,17 +250,20 @@ def year_figures(state: TimelineState, row: Any) -> str:
     share = row["share_of_mature_pct"]
     share_text = "" if not np.isfinite(share) else f" ({share:.0f} % of the change once mature)"
     age = row["mean_stand_age_yr"]
-    stands = (f"{row['planted_pct']:.1f} % of the catchment in planted stands, mean age "
-              f"{age:.1f} years" if np.isfinite(age) else "no stand planted yet")
+    stands = (
+        f"{row['planted_pct']:.1f} % of the catchment in planted stands, mean age {age:.1f} years"
+        if np.isfinite(age)
+        else "no stand planted yet"
+    )
     return (
         f'<div style="border:1px solid #D5D9DE;padding:6px 12px;color:{palette.INK}">'
-        f'<div {small}>YEAR {int(row.name)} OF {len(plan.table)} \u00b7 {int(row["year"])} '
-        f'(weather of {int(row["weather_year"])})</div>'
-        f'<div><span {big}>{signed(row["change_mm"], "mm/yr")}</span> '
-        f'<span {small}>against current{html.escape(share_text)}</span></div>'
-        f'<div {small}>yield {row["yield_mm"]:,.1f} mm/yr ({row["yield_ml"]:,.0f} ML/yr); '
-        f'change {signed(row["change_ml"], "ML/yr", 0)}; once mature '
-        f'{signed(row["mature_change_mm"], "mm/yr")} on this weather, '
-        f'{signed(plan.mature_change_mm, "mm/yr")} on average</div>'
-        f'<div {small}>{stands}; schedule: {html.escape(state.schedule_label)}</div></div>'
+        f"<div {small}>YEAR {int(row.name)} OF {len(plan.table)} \u00b7 {int(row['year'])} "
+        f"(weather of {int(row['weather_year'])})</div>"
+        f"<div><span {big}>{signed(row['change_mm'], 'mm/yr')}</span> "
+        f"<span {small}>against current{html.escape(share_text)}</span></div>"
+        f"<div {small}>yield {row['yield_mm']:,.1f} mm/yr ({row['yield_ml']:,.0f} ML/yr); "
+        f"change {signed(row['change_ml'], 'ML/yr', 0)}; once mature "
+        f"{signed(row['mature_change_mm'], 'mm/yr')} on this weather, "
+        f"{signed(plan.mature_change_mm, 'mm/yr')} on average</div>"
+        f"<div {small}>{stands}; schedule: {html.escape(state.schedule_label)}</div></div>"
     )

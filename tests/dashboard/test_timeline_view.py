@@ -22,10 +22,12 @@ def _no_daily_loop(monkeypatch):
 
     for name in ("run_tiles", "run_tiles_annual", "run_tiles_daily"):
         monkeypatch.setattr(kernels, name, forbidden)
-    for module, name in ((coveryield.catchment, "simulate_tiles"),
-                         (coveryield.comparison, "simulate_catchment"),
-                         (coveryield.stands, "simulate_tiles"),
-                         (coveryield.stands, "simulate_stands")):
+    for module, name in (
+        (coveryield.catchment, "simulate_tiles"),
+        (coveryield.comparison, "simulate_catchment"),
+        (coveryield.stands, "simulate_tiles"),
+        (coveryield.stands, "simulate_stands"),
+    ):
         monkeypatch.setattr(module, name, forbidden)
 
 
@@ -88,8 +90,9 @@ def test_marks_are_updated_in_place(view):
     assert list(view.figure.marks) == marks
 
 
-def test_a_failed_re_timing_shows_a_message_and_keeps_the_controls_in_line(dashboard, view,
-                                                                         monkeypatch):
+def test_a_failed_re_timing_shows_a_message_and_keeps_the_controls_in_line(
+    dashboard, view, monkeypatch
+):
     from coveryield.errors import PlanFileError
 
     def refuse(*args, **kwargs):

@@ -39,19 +39,31 @@ def _chained_crown_yield(plan_file, growth) -> np.ndarray:
         cover = stage_cover(forest, pasture, growth(_age(t)), name="chained")
         params = tile_parameters(
             plan_file.model_copy(update={"covers": {**plan_file.covers, "chained": cover}}),
-            [("all", "chained")])
+            [("all", "chained")],
+        )
         taw = float(params.root_zone_capacity_mm[0])
         start = 0.5 if soil_end is None else min(soil_end / taw, 1.0)
         drained = 0.0 if soil_end is None else max(soil_end - taw, 0.0)
-        params = TileParameters(params.canopy_capacity_mm, params.root_zone_capacity_mm,
-                                params.depletion_fraction, params.curve_number,
-                                params.is_water, params.rain_rate_mm_per_h, start)
+        params = TileParameters(
+            params.canopy_capacity_mm,
+            params.root_zone_capacity_mm,
+            params.depletion_fraction,
+            params.curve_number,
+            params.is_water,
+            params.rain_rate_mm_per_h,
+            start,
+        )
         days = climate.daily.index.year == year
         rates = cover_evaporation(climate, cover, et0_mm=et0)
-        run = simulate_tiles(rain[days, None], rates["wet_mm"].to_numpy()[days, None],
-                             rates["dry_mm"].to_numpy()[days, None],
-                             rates["soil_mm"].to_numpy()[days, None], params,
-                             np.zeros(int(days.sum()), dtype=np.int64), keep_daily=True)
+        run = simulate_tiles(
+            rain[days, None],
+            rates["wet_mm"].to_numpy()[days, None],
+            rates["dry_mm"].to_numpy()[days, None],
+            rates["soil_mm"].to_numpy()[days, None],
+            params,
+            np.zeros(int(days.sum()), dtype=np.int64),
+            keep_daily=True,
+        )
         soil_end = float(run.daily["soil_store_mm"][-1, 0])
         yields.append(float(run.annual.yield_mm[0, 0]) + drained)
     return np.array(yields)

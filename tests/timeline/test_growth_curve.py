@@ -30,8 +30,11 @@ def test_inflection_where_the_closed_form_puts_it(shape):
     k = 0.17
     a = np.log(shape) / k
     step = 1e-3
-    second = (chapman_richards(a + step, k, shape) - 2 * chapman_richards(a, k, shape)
-              + chapman_richards(a - step, k, shape)) / step**2
+    second = (
+        chapman_richards(a + step, k, shape)
+        - 2 * chapman_richards(a, k, shape)
+        + chapman_richards(a - step, k, shape)
+    ) / step**2
     assert abs(second) < 1e-6
     assert chapman_richards(a, k, shape) == pytest.approx(((shape - 1) / shape) ** shape)
 
@@ -45,7 +48,8 @@ def test_rate_puts_95_percent_at_the_maturity_age(maturity, shape):
     ages = np.linspace(0.0, 3 * maturity, 50)
     g = chapman_richards(ages, k, shape)
     assert g[0] == 0.0
-    assert (np.diff(g) >= 0).all() and (g < 1.0).all()
+    assert (np.diff(g) >= 0).all()
+    assert (g < 1.0).all()
 
 
 def test_default_forest_growth_and_its_stated_sources():
@@ -63,8 +67,13 @@ def test_default_forest_growth_and_its_stated_sources():
 def test_growth_refuses_impossible_values():
     from pydantic import ValidationError
 
-    for bad in ({"maturity_years": 0}, {"shape": 0.5}, {"rotation_years": 1},
-                {"start": ""}, {"maturity": 10}):
+    for bad in (
+        {"maturity_years": 0},
+        {"shape": 0.5},
+        {"rotation_years": 1},
+        {"start": ""},
+        {"maturity": 10},
+    ):
         with pytest.raises(ValidationError):
             Growth.model_validate(bad)
 

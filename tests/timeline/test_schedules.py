@@ -1,4 +1,4 @@
-"""Schedules in plan files: reading, writing back, cohorts and ages, and one clear message per mistake."""
+"""Schedules in plan files: reading, writing back, cohorts, ages, one clear message per mistake."""
 
 from __future__ import annotations
 
@@ -62,7 +62,8 @@ def test_growth_table_on_a_derived_cover_updates_the_parents(write_demo):
     text = DEMO_TEXT.replace(
         "[covers.riparian-natives]",
         '[covers.fast-gum]\nbase = "forest"\n[covers.fast-gum.growth]\nmaturity_years = 8\n'
-        "rotation_years = 12\n\n[covers.riparian-natives]")
+        "rotation_years = 12\n\n[covers.riparian-natives]",
+    )
     growth = load_plan(write_demo(text)).covers["fast-gum"].growth
     assert (growth.maturity_years, growth.shape, growth.rotation_years) == (8.0, 1.5, 12)
 
@@ -82,8 +83,9 @@ def test_ages_at_mid_year_with_rotation_and_harvest():
     assert plain.ages(years)[2] == 0.5  # planting year: half a year old at mid-year
     assert plain.ages(years)[11] == 9.5
     felled = Cohort("z", "forest", "pasture", "pasture", 0.1, planted_year=1, rotation_years=4)
-    np.testing.assert_array_equal(felled.ages(years)[:9], [0.5, 1.5, 2.5, 3.5, 0.5, 1.5, 2.5,
-                                                           3.5, 0.5])
+    np.testing.assert_array_equal(
+        felled.ages(years)[:9], [0.5, 1.5, 2.5, 3.5, 0.5, 1.5, 2.5, 3.5, 0.5]
+    )
     once = Cohort("z", "forest", "pasture", "pasture", 0.1, planted_year=1, harvest_year=6)
     np.testing.assert_array_equal(once.ages(years)[4:7], [4.5, 0.5, 1.5])
 
@@ -94,8 +96,9 @@ def test_young_state_rules(write_demo):
     assert young_state(forest, "pasture", covers) == "pasture"
     assert young_state(forest, "crop", covers) == "pasture"  # not grass: the fallback
     assert young_state(forest, "forest", covers) == "pasture"  # felled forest regrows from grass
-    started = forest.model_copy(update={"growth": forest.growth.model_copy(
-        update={"start": "pasture"})})
+    started = forest.model_copy(
+        update={"growth": forest.growth.model_copy(update={"start": "pasture"})}
+    )
     assert young_state(started, "crop", covers) == "pasture"
 
 
@@ -104,24 +107,32 @@ def test_plan_without_schedule_is_made_at_once_in_year_one(write_demo):
     schedule = implicit_schedule(plan_file, "riparian-strips")
     assert {(p.zone, p.cover, p.replaces, p.year, p.years) for p in schedule.plantings} == {
         ("middle", "riparian-natives", "pasture", 1, 1),
-        ("lower", "riparian-natives", "pasture", 1, 1)}
+        ("lower", "riparian-natives", "pasture", 1, 1),
+    }
     assert all(p.total_share == pytest.approx(0.10) for p in schedule.plantings)
-    assert implicit_schedule(plan_file.with_plan("same", plan_file.plans["current"]),
-                             "same") is None
+    assert (
+        implicit_schedule(plan_file.with_plan("same", plan_file.plans["current"]), "same") is None
+    )
 
 
 def test_base_shares_follow_the_plantings(write_demo):
     plan_file = load_plan(write_demo())
     planted = cohorts(plan_file.schedules["plant-upper"], plan_file.covers)
     shares = base_shares_by_year(plan_file.plans["current"], planted, 8)
-    np.testing.assert_allclose(shares["upper"]["pasture"],
-                               [0.62, 0.52, 0.42, 0.32, 0.22, 0.12, 0.12, 0.12])
+    np.testing.assert_allclose(
+        shares["upper"]["pasture"], [0.62, 0.52, 0.42, 0.32, 0.22, 0.12, 0.12, 0.12]
+    )
     np.testing.assert_allclose(shares["upper"]["forest"], 0.25)  # stands are held apart
 
 
 def test_respacing_shifting_and_rotation_keep_the_total():
-    schedule = Schedule(plantings=(Planting(zone="z", cover="forest", replaces="pasture",
-                                            share_per_year=0.1, year=2, years=6),))
+    schedule = Schedule(
+        plantings=(
+            Planting(
+                zone="z", cover="forest", replaces="pasture", share_per_year=0.1, year=2, years=6
+            ),
+        )
+    )
     spread = schedule.spread_over(3)
     assert spread.plantings[0].share_each_year == pytest.approx(0.2)
     assert spread.plantings[0].total_share == pytest.approx(0.6)
@@ -135,55 +146,138 @@ STAGED = "share_per_year = 0.10\nyear = 1\nyears = 6\n\n[schedules.plant-upper-a
 
 BAD_SCHEDULES = [
     # shares that would exceed the zone
-    ("exceeds-the-zone", STAGED, STAGED.replace("0.10", "0.15"),
-     ["schedules.plant-upper", "by year 5", "0.75 of zone upper from pasture", "only 0.72",
-      "exceed the zone"]),
+    (
+        "exceeds-the-zone",
+        STAGED,
+        STAGED.replace("0.10", "0.15"),
+        [
+            "schedules.plant-upper",
+            "by year 5",
+            "0.75 of zone upper from pasture",
+            "only 0.72",
+            "exceed the zone",
+        ],
+    ),
     # a harvest before planting
-    ("harvest-before-planting", STAGED, STAGED.replace("years = 6", "years = 6\nharvest_year = 4"),
-     ["schedules.plant-upper.plantings[1]", "harvest_year = 4", "not after the planting",
-      "from 7 on"]),
+    (
+        "harvest-before-planting",
+        STAGED,
+        STAGED.replace("years = 6", "years = 6\nharvest_year = 4"),
+        [
+            "schedules.plant-upper.plantings[1]",
+            "harvest_year = 4",
+            "not after the planting",
+            "from 7 on",
+        ],
+    ),
     # a non-forest cover given a trajectory
-    ("growth-on-grass", "[covers.riparian-natives]",
-     '[covers.tall-grass]\nbase = "pasture"\n[covers.tall-grass.growth]\nmaturity_years = 3\n'
-     "[covers.riparian-natives]",
-     ["covers.tall-grass.growth = { maturity_years = 3 }", "only for covers that derive from "
-      "forest", "derives from pasture"]),
-    ("plantings-miss-the-plan", STAGED, STAGED.replace("0.10", "0.05"),
-     ["schedules.plant-upper", "after every planting zone upper has", "pasture = 0.42",
-      "plans.plant-upper.upper is", "lead from plans.current"]),
-    ("unknown-zone", 'zone = "upper"', 'zone = "uper"',
-     ['schedules.plant-upper.plantings[1].zone = "uper"', "unknown zone", "upper, middle, lower"]),
-    ("unknown-cover", 'cover = "forest"', 'cover = "pine"',
-     ['schedules.plant-upper.plantings[1].cover = "pine"', "unknown cover", "young-pine"]),
-    ("share-and-share-per-year", "share_per_year = 0.10\nyear = 1\nyears = 6\n\n[schedules.",
-     "share_per_year = 0.10\nshare = 0.6\nyear = 1\nyears = 6\n\n[schedules.",
-     ["schedules.plant-upper.plantings[1]", "either share", "not both"]),
-    ("year-as-text", "year = 7", 'year = "7"',
-     ['schedules.plant-upper-and-middle.plantings[2].year = "7"', "a whole number"]),
-    ("year-zero", "year = 7", "year = 0",
-     ["schedules.plant-upper-and-middle.plantings[2].year = 0", "from 1"]),
-    ("unknown-planting-key", "year = 7", "year = 7\nspacing_m = 3",
-     ["plantings[2].spacing_m = 3", "unknown key", "rotation_years"]),
-    ("schedule-for-unknown-plan", "schedules.plant-upper", "schedules.plant-uper",
-     ["schedules.plant-uper", "no plan of that name", "plant-upper, plant-upper-young"]),
-    ("schedule-for-current", "schedules.plant-upper", "schedules.current",
-     ["schedules.current", "the baseline has no schedule"]),
-    ("rotation-on-a-fixed-cover", 'cover = "forest"\nreplaces = "pasture"\nshare = 0.40',
-     'cover = "young-pine"\nreplaces = "pasture"\nshare = 0.40',
-     ["plantings[2].rotation_years = 25", "young-pine does not grow"]),
-    ("growth-start-not-grass", "[covers.riparian-natives]",
-     '[covers.gum]\nbase = "forest"\ngrowth = { start = "crop" }\n[covers.riparian-natives]',
-     ['covers.gum.growth.start = "crop"', "derives from pasture"]),
-    ("unknown-growth-key", "[covers.riparian-natives]",
-     '[covers.gum]\nbase = "forest"\ngrowth = { maturity = 9 }\n[covers.riparian-natives]',
-     ["covers.gum.growth.maturity = 9", "unknown key", "maturity_years, shape"]),
-    ("no-plantings", "[[schedules.plant-upper.plantings]]", "[schedules.plant-upper.extra]",
-     ["schedules.plant-upper", "at least one [[schedules.plant-upper.plantings]]"]),
+    (
+        "growth-on-grass",
+        "[covers.riparian-natives]",
+        '[covers.tall-grass]\nbase = "pasture"\n[covers.tall-grass.growth]\nmaturity_years = 3\n'
+        "[covers.riparian-natives]",
+        [
+            "covers.tall-grass.growth = { maturity_years = 3 }",
+            "only for covers that derive from forest",
+            "derives from pasture",
+        ],
+    ),
+    (
+        "plantings-miss-the-plan",
+        STAGED,
+        STAGED.replace("0.10", "0.05"),
+        [
+            "schedules.plant-upper",
+            "after every planting zone upper has",
+            "pasture = 0.42",
+            "plans.plant-upper.upper is",
+            "lead from plans.current",
+        ],
+    ),
+    (
+        "unknown-zone",
+        'zone = "upper"',
+        'zone = "uper"',
+        [
+            'schedules.plant-upper.plantings[1].zone = "uper"',
+            "unknown zone",
+            "upper, middle, lower",
+        ],
+    ),
+    (
+        "unknown-cover",
+        'cover = "forest"',
+        'cover = "pine"',
+        ['schedules.plant-upper.plantings[1].cover = "pine"', "unknown cover", "young-pine"],
+    ),
+    (
+        "share-and-share-per-year",
+        "share_per_year = 0.10\nyear = 1\nyears = 6\n\n[schedules.",
+        "share_per_year = 0.10\nshare = 0.6\nyear = 1\nyears = 6\n\n[schedules.",
+        ["schedules.plant-upper.plantings[1]", "either share", "not both"],
+    ),
+    (
+        "year-as-text",
+        "year = 7",
+        'year = "7"',
+        ['schedules.plant-upper-and-middle.plantings[2].year = "7"', "a whole number"],
+    ),
+    (
+        "year-zero",
+        "year = 7",
+        "year = 0",
+        ["schedules.plant-upper-and-middle.plantings[2].year = 0", "from 1"],
+    ),
+    (
+        "unknown-planting-key",
+        "year = 7",
+        "year = 7\nspacing_m = 3",
+        ["plantings[2].spacing_m = 3", "unknown key", "rotation_years"],
+    ),
+    (
+        "schedule-for-unknown-plan",
+        "schedules.plant-upper",
+        "schedules.plant-uper",
+        ["schedules.plant-uper", "no plan of that name", "plant-upper, plant-upper-young"],
+    ),
+    (
+        "schedule-for-current",
+        "schedules.plant-upper",
+        "schedules.current",
+        ["schedules.current", "the baseline has no schedule"],
+    ),
+    (
+        "rotation-on-a-fixed-cover",
+        'cover = "forest"\nreplaces = "pasture"\nshare = 0.40',
+        'cover = "young-pine"\nreplaces = "pasture"\nshare = 0.40',
+        ["plantings[2].rotation_years = 25", "young-pine does not grow"],
+    ),
+    (
+        "growth-start-not-grass",
+        "[covers.riparian-natives]",
+        '[covers.gum]\nbase = "forest"\ngrowth = { start = "crop" }\n[covers.riparian-natives]',
+        ['covers.gum.growth.start = "crop"', "derives from pasture"],
+    ),
+    (
+        "unknown-growth-key",
+        "[covers.riparian-natives]",
+        '[covers.gum]\nbase = "forest"\ngrowth = { maturity = 9 }\n[covers.riparian-natives]',
+        ["covers.gum.growth.maturity = 9", "unknown key", "maturity_years, shape"],
+    ),
+    (
+        "no-plantings",
+        "[[schedules.plant-upper.plantings]]",
+        "[schedules.plant-upper.extra]",
+        ["schedules.plant-upper", "at least one [[schedules.plant-upper.plantings]]"],
+    ),
 ]
 
 
-@pytest.mark.parametrize(("replace", "by", "fragments"),
-                         [case[1:] for case in BAD_SCHEDULES], ids=[c[0] for c in BAD_SCHEDULES])
+@pytest.mark.parametrize(
+    ("replace", "by", "fragments"),
+    [case[1:] for case in BAD_SCHEDULES],
+    ids=[c[0] for c in BAD_SCHEDULES],
+)
 def test_bad_schedule_gives_one_clear_message(write_demo, replace, by, fragments):
     assert replace in DEMO_TEXT
     # a schedule's name is in its table header and in its plantings' headers: rename both
@@ -204,6 +298,10 @@ def test_planting_year_outside_the_timeline(write_demo):
     with pytest.raises(PlanFileError) as caught:
         check_fits_timeline(plan_file, "plant-upper-and-middle", schedule, 9)
     message = str(caught.value)
-    for fragment in ("schedules.plant-upper-and-middle.plantings[2].years = 4",
-                     "outside the timeline of 9 years", "years 7 to 10", "from 1 to 9"):
+    for fragment in (
+        "schedules.plant-upper-and-middle.plantings[2].years = 4",
+        "outside the timeline of 9 years",
+        "years 7 to 10",
+        "from 1 to 9",
+    ):
         assert fragment in message

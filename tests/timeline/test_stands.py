@@ -1,4 +1,4 @@
-"""Stage tiles of growing stands: parameters between young and mature, weights, closure, accuracy."""
+"""Stage tiles of growing stands: parameters between young and mature, weights, closure."""
 
 from __future__ import annotations
 
@@ -40,11 +40,13 @@ def test_stage_weights_mix_crowns_and_open_ground():
     assert w[0, 0] == 1.0
     # at a simulated stage: (1 - g) open ground (stage 0) + g trees of that size
     k = int(np.flatnonzero(GROWTH_STAGES == 0.05)[0])
-    assert w[1, 0] == pytest.approx(0.95) and w[1, k] == pytest.approx(0.05)
+    assert w[1, 0] == pytest.approx(0.95)
+    assert w[1, k] == pytest.approx(0.05)
     assert w[4, -1] == pytest.approx(1.0)
     # between stages the tree part is split linearly: g = 0.33 lies 30 % of the way 0.3 -> 0.4
     lo, hi = np.searchsorted(GROWTH_STAGES, [0.3, 0.4])
-    assert w[2, lo] == pytest.approx(0.33 * 0.7) and w[2, hi] == pytest.approx(0.33 * 0.3)
+    assert w[2, lo] == pytest.approx(0.33 * 0.7)
+    assert w[2, hi] == pytest.approx(0.33 * 0.3)
 
 
 @pytest.fixture(scope="module")
@@ -52,8 +54,7 @@ def one_zone_plan(tmp_path_factory):
     return coveryield.load_plan(write_plan(tmp_path_factory.mktemp("stands")))
 
 
-def test_interpolated_stands_match_stands_simulated_at_their_exact_size(one_zone_plan,
-                                                                       monkeypatch):
+def test_interpolated_stands_match_stands_simulated_at_their_exact_size(one_zone_plan, monkeypatch):
     # Our accuracy target for the stage grid (a design choice, no source): a stand interpolated
     # between stages differs from one simulated at its exact growth by under 1 % of the mature
     # change in the long-term mean and under 2 % in any single year.
@@ -83,16 +84,26 @@ def two_year_plan(tmp_path_factory):
     return coveryield.load_plan(write_plan(folder))
 
 
-covers_drawn = st.fixed_dictionaries({
-    "height_m": st.floats(2.0, 40.0), "lai": st.floats(1.0, 10.0),
-    "canopy_capacity_mm": st.floats(0.0, 3.0), "rooting_depth_m": st.floats(0.3, 3.0),
-    "rs_s_per_m": st.floats(20.0, 400.0), "albedo": st.floats(0.05, 0.3),
-})
-young_drawn = st.fixed_dictionaries({
-    "height_m": st.floats(0.05, 1.0), "lai": st.floats(0.3, 4.0),
-    "canopy_capacity_mm": st.floats(0.0, 1.0), "rooting_depth_m": st.floats(0.1, 1.5),
-    "rs_s_per_m": st.floats(30.0, 300.0), "albedo": st.floats(0.1, 0.3),
-})
+covers_drawn = st.fixed_dictionaries(
+    {
+        "height_m": st.floats(2.0, 40.0),
+        "lai": st.floats(1.0, 10.0),
+        "canopy_capacity_mm": st.floats(0.0, 3.0),
+        "rooting_depth_m": st.floats(0.3, 3.0),
+        "rs_s_per_m": st.floats(20.0, 400.0),
+        "albedo": st.floats(0.05, 0.3),
+    }
+)
+young_drawn = st.fixed_dictionaries(
+    {
+        "height_m": st.floats(0.05, 1.0),
+        "lai": st.floats(0.3, 4.0),
+        "canopy_capacity_mm": st.floats(0.0, 1.0),
+        "rooting_depth_m": st.floats(0.1, 1.5),
+        "rs_s_per_m": st.floats(30.0, 300.0),
+        "albedo": st.floats(0.1, 0.3),
+    }
+)
 
 
 @settings(max_examples=25, deadline=None)
@@ -102,8 +113,9 @@ def test_every_stage_tile_year_closes(two_year_plan, mature_values, young_values
     # no source: a water balance must close)
     mature = derive_cover("tree", "forest", mature_values)
     young = derive_cover("grass", "pasture", young_values)
-    plan = two_year_plan.model_copy(update={"covers": {**two_year_plan.covers,
-                                                       "tree": mature, "grass": young}})
+    plan = two_year_plan.model_copy(
+        update={"covers": {**two_year_plan.covers, "tree": mature, "grass": young}}
+    )
     result = simulate_stands(plan, [StandKey("all", "tree", "grass")])
     a = result.annual
     evap = a["interception_mm"] + a["transpiration_mm"] + a["soil_evap_mm"] + a["open_water_mm"]

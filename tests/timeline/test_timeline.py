@@ -42,17 +42,22 @@ def test_staged_demo_programme_ends_at_the_mature_plan(demo):
     plan = demo.timeline("plant-upper", years=90)["plant-upper"]
     late = plan.table.loc[61:90, "change_mm"].mean()
     assert late == pytest.approx(plan.mature_change_mm, rel=0.01)
-    assert plan.mature_change_mm == pytest.approx(
-        demo.change(demo.outcome("plant-upper")).yield_mm)
+    assert plan.mature_change_mm == pytest.approx(demo.change(demo.outcome("plant-upper")).yield_mm)
 
 
 def test_felling_raises_the_yield_which_recovers_as_the_stand_regrows(one_zone, at_once):
     # Bosch & Hewlett (1982; from memory): yield rises after clear-felling; Brown et al. (2005):
     # the rise fades as the stand regrows. Compared on the same weather with the unfelled stand.
-    felled = Schedule(plantings=(Planting(zone="all", cover="forest", replaces="pasture",
-                                          share=1.0, year=1, harvest_year=31),))
-    table = one_zone.timeline("forest-100", years=90,
-                              schedules={"forest-100": felled})["forest-100"].table
+    felled = Schedule(
+        plantings=(
+            Planting(
+                zone="all", cover="forest", replaces="pasture", share=1.0, year=1, harvest_year=31
+            ),
+        )
+    )
+    table = one_zone.timeline("forest-100", years=90, schedules={"forest-100": felled})[
+        "forest-100"
+    ].table
     rise = (table["yield_mm"] - at_once["yield_mm"]).loc[25:90]
     assert (rise.loc[25:30] == 0.0).all()  # before felling: the same stand
     mature = -at_once["mature_change_mm"]
@@ -63,10 +68,16 @@ def test_felling_raises_the_yield_which_recovers_as_the_stand_regrows(one_zone, 
 
 
 def test_rotation_fells_again_and_again(one_zone):
-    rotated = Schedule(plantings=(Planting(zone="all", cover="forest", replaces="pasture",
-                                           share=1.0, year=1, rotation_years=20),))
-    table = one_zone.timeline("forest-100", years=60,
-                              schedules={"forest-100": rotated})["forest-100"].table
+    rotated = Schedule(
+        plantings=(
+            Planting(
+                zone="all", cover="forest", replaces="pasture", share=1.0, year=1, rotation_years=20
+            ),
+        )
+    )
+    table = one_zone.timeline("forest-100", years=60, schedules={"forest-100": rotated})[
+        "forest-100"
+    ].table
     np.testing.assert_allclose(table.loc[[1, 21, 41], "mean_stand_age_yr"], 0.5)
     shares = table["share_of_mature_pct"]
     assert shares.loc[21] < 0.5 * shares.loc[20]
@@ -92,37 +103,54 @@ def test_change_is_linear_in_the_share_planted(one_zone):
     # Tiles are mixed by area, so planting half the area gives half the change, year by year
     # (a property of the design, no source).
     timeline = one_zone.timeline(["forest-50", "forest-100"], years=30)
-    np.testing.assert_allclose(timeline["forest-50"].table["change_mm"],
-                               0.5 * timeline["forest-100"].table["change_mm"], rtol=1e-9,
-                               atol=1e-9)
+    np.testing.assert_allclose(
+        timeline["forest-50"].table["change_mm"],
+        0.5 * timeline["forest-100"].table["change_mm"],
+        rtol=1e-9,
+        atol=1e-9,
+    )
 
 
 def test_every_timeline_year_closes(demo):
     # rain = evaporation + yield + storage change over the catchment (1e-6 mm; common practice)
     table = demo.timeline(years=60).table()
-    residual = (table["rain_mm"] - table["evap_mm"] - table["yield_mm"]
-                - table["storage_change_mm"])
+    residual = table["rain_mm"] - table["evap_mm"] - table["yield_mm"] - table["storage_change_mm"]
     assert np.abs(residual).max() <= 1e-6
     assert list(table.columns) == list(TIMELINE_COLUMNS)
     assert list(table["plan"].unique()) == demo.plan_names
 
 
 cohorts_drawn = st.lists(
-    st.tuples(st.floats(0.01, 0.2), st.integers(1, 25),
-              st.one_of(st.none(), st.integers(2, 40)), st.one_of(st.none(), st.integers(1, 30))),
-    min_size=1, max_size=5)
+    st.tuples(
+        st.floats(0.01, 0.2),
+        st.integers(1, 25),
+        st.one_of(st.none(), st.integers(2, 40)),
+        st.one_of(st.none(), st.integers(1, 30)),
+    ),
+    min_size=1,
+    max_size=5,
+)
 
 
 @settings(max_examples=40, deadline=None)
 @given(cohorts_drawn)
 def test_closure_holds_for_any_cohorts(one_zone, drawn):
-    planted = [Cohort("all", "forest", "pasture", "pasture", share, year, rotation,
-                      None if harvest is None else year + harvest)
-               for share, year, rotation, harvest in drawn]
+    planted = [
+        Cohort(
+            "all",
+            "forest",
+            "pasture",
+            "pasture",
+            share,
+            year,
+            rotation,
+            None if harvest is None else year + harvest,
+        )
+        for share, year, rotation, harvest in drawn
+    ]
     stands = one_zone.stand_results(stand_keys(planted))
     table = plan_timeline(one_zone, "forest-100", None, planted, stands, 30, 2000).table
-    residual = (table["rain_mm"] - table["evap_mm"] - table["yield_mm"]
-                - table["storage_change_mm"])
+    residual = table["rain_mm"] - table["evap_mm"] - table["yield_mm"] - table["storage_change_mm"]
     assert np.abs(residual).max() <= 1e-6
     expected_area = 100.0 * sum(share for share, year, *_ in drawn if year <= 30)
     assert table["planted_pct"].iloc[-1] == pytest.approx(expected_area)
@@ -155,7 +183,8 @@ def test_unknown_plan_and_bad_lengths_are_refused(demo):
 
 
 def test_a_schedule_given_from_python_is_checked_like_the_file(demo):
-    bad = Schedule(plantings=(Planting(zone="upper", cover="forest", replaces="pasture",
-                                       share=0.8, year=1),))
+    bad = Schedule(
+        plantings=(Planting(zone="upper", cover="forest", replaces="pasture", share=0.8, year=1),)
+    )
     with pytest.raises(PlanFileError, match="exceed the zone"):
         demo.timeline("plant-upper", schedules={"plant-upper": bad})
