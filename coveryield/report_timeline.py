@@ -39,10 +39,10 @@ def _headline_table(result: Comparison, timeline: Timeline) -> str:
     periods = _periods(timeline)
     head = (
         '<tr><th rowspan="2">plan</th><th rowspan="2">schedule</th>'
-        '<th colspan="2">change once mature<br>(mean over the record)</th>'
+        '<th colspan="3">change once mature<br>(mean over the record)</th>'
         + "".join(f'<th colspan="2">{label}</th>' for _, _, label in periods)
         + '<th rowspan="2">in growing stands<br>at the end<br>% of catchment</th></tr>'
-        "<tr><th>mm/yr</th><th>%</th>"
+        "<tr><th>mm/yr</th><th>%</th><th>ML/yr</th>"
         + "<th>mm/yr</th><th>% of mature</th>" * len(periods)
         + "</tr>"
     )
@@ -53,6 +53,7 @@ def _headline_table(result: Comparison, timeline: Timeline) -> str:
             _td(plan.schedule_label, "name"),
             _td(_signed(plan.mature_change_mm, 1)),
             _td(_signed(plan.mature_change_pct, 1)),
+            _td(_signed(plan.mature_change_mm * result.tiles.area_km2)),
         ]
         for first, last, _ in periods:
             change, share = plan.period_change(first, last)

@@ -11,7 +11,6 @@ weather (a maritime climate whose root zone refills every winter).
 from __future__ import annotations
 
 import numpy as np
-import pytest
 
 import coveryield
 from coveryield.catchment import tile_parameters, zone_climates
@@ -69,7 +68,6 @@ def _chained_crown_yield(plan_file, growth) -> np.ndarray:
     return np.array(yields)
 
 
-@pytest.mark.slow
 def test_soil_water_assumption_moves_the_yield_little(tmp_path):
     plan_file = coveryield.load_plan(write_plan(tmp_path))
     growth = plan_file.covers["forest"].growth.fraction
