@@ -372,7 +372,8 @@ def plan_from_dict(data: Mapping[str, Any], *, source: str | Path) -> PlanFile:
     covers = _read_covers(data, problems)
     problems += growth_start_problems(covers)
     plans = _read_plans(data, zones, covers, problems)
-    schedules = read_schedules(data, plans if not problems else {}, covers, problems)
+    read_all = isinstance(data.get("plans"), Mapping) and set(plans) == set(data["plans"])
+    schedules = read_schedules(data, plans if read_all else {}, covers, problems)
     if problems:
         raise PlanFileError(_problem_message(source, problems))
     return PlanFile(source=source, catchment=catchment, zones=tuple(zones), covers=covers,

@@ -305,3 +305,15 @@ def test_planting_year_outside_the_timeline(write_demo):
         "from 1 to 9",
     ):
         assert fragment in message
+
+
+def test_schedule_problems_are_listed_with_problems_elsewhere(write_demo):
+    text = DEMO_TEXT.replace("area_km2 = 48.0", "area_km2 = -48.0").replace(
+        "year = 7", "year = 0"
+    )
+    with pytest.raises(PlanFileError) as caught:
+        load_plan(write_demo(text.replace(STAGED, STAGED.replace("0.10", "0.15"), 1)))
+    message = str(caught.value)
+    assert "has 3 problems" in message
+    for fragment in ("catchment.area_km2 = -48.0", "plantings[2].year = 0", "exceed the zone"):
+        assert fragment in message
