@@ -308,9 +308,7 @@ def test_planting_year_outside_the_timeline(write_demo):
 
 
 def test_schedule_problems_are_listed_with_problems_elsewhere(write_demo):
-    text = DEMO_TEXT.replace("area_km2 = 48.0", "area_km2 = -48.0").replace(
-        "year = 7", "year = 0"
-    )
+    text = DEMO_TEXT.replace("area_km2 = 48.0", "area_km2 = -48.0").replace("year = 7", "year = 0")
     with pytest.raises(PlanFileError) as caught:
         load_plan(write_demo(text.replace(STAGED, STAGED.replace("0.10", "0.15"), 1)))
     message = str(caught.value)
