@@ -28,6 +28,7 @@ import numpy as np
 import pandas as pd
 
 from coveryield.engine.kernels import ANNUAL_NAMES
+from coveryield.engine.water_balance import TileAnnual
 from coveryield.errors import PlanFileError
 from coveryield.schedules import (
     Cohort,
@@ -410,13 +411,8 @@ def _frame(
     comparison: Comparison, fluxes: dict, weather: np.ndarray, start_year: int
 ) -> pd.DataFrame:
     n_years = len(weather)
-    evap = (
-        fluxes["interception_mm"]
-        + fluxes["transpiration_mm"]
-        + fluxes["soil_evap_mm"]
-        + fluxes["open_water_mm"]
-    )
-    yield_mm = fluxes["quickflow_mm"] + fluxes["drainage_mm"]
+    balance = TileAnnual(**fluxes)  # the engine's own definitions of evaporation and yield
+    evap, yield_mm = balance.evap_mm, balance.yield_mm
     frame = pd.DataFrame(
         {
             "year": start_year + np.arange(n_years),
