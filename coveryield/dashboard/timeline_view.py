@@ -22,7 +22,8 @@ from coveryield.dashboard.timeline_state import (
     NEVER,
     TimelineState,
 )
-from coveryield.dashboard.views import Guard, legend, signed
+from coveryield.dashboard.views import Guard, signed
+from coveryield.report_html import PLAN_STYLES
 
 #: Felling ages offered [yr].
 FELLING_AGES = (15, 20, 25, 30, 35, 40, 50, 60)
@@ -108,13 +109,11 @@ class TimelineView:
                     layout=widgets.Layout(flex_flow="row wrap", width="100%"),
                 ),
                 self.figure,
-                legend(
-                    {
-                        "this plan, year by year": palette.EDITED,
-                        "mature plan, same weather": palette.MUTED,
-                        "mature plan, mean over the record (dashed)": palette.INK,
-                    },
-                    line=True,
+                widgets.HTML(
+                    f'<div style="color:{palette.MUTED};font-size:12px;text-align:center">'
+                    "Coloured line: this plan, each year on its own weather \u00b7 grey line: the "
+                    "mature plan on the same weather \u00b7 dashed: the mature plan, mean over "
+                    "the record \u00b7 upright line: the year shown.</div>"
                 ),
             ]
         )
@@ -139,7 +138,7 @@ class TimelineView:
             x=[1.0],
             y=[[0.0], [0.0]],
             scales={"x": sx, "y": sy},
-            colors=[palette.EDITED, palette.MUTED],
+            colors=[plan_colour(self.state), palette.MUTED],
             stroke_width=2,
             marker="circle",
             marker_size=14,
@@ -219,6 +218,7 @@ class TimelineView:
         ends = [0.5, x[-1] + 0.5]
         mature = float(self.state.timeline.mature_change_mm)
         with self.path.hold_sync():
+            self.path.colors = [plan_colour(self.state), palette.MUTED]
             self.path.x = x
             self.path.y = np.vstack(
                 [table["change_mm"].to_numpy(float), table["mature_change_mm"].to_numpy(float)]
@@ -242,9 +242,15 @@ class TimelineView:
         self.figures.value = year_figures(state, row)
 
 
+def plan_colour(state: TimelineState) -> str:
+    """Return the colour of the plan followed: its colour in every report."""
+    index = state.comparison.plan_names.index(state.plan_name)
+    return PLAN_STYLES[index % len(PLAN_STYLES)][0]
+
+
 def year_figures(state: TimelineState, row: Any) -> str:
     """HTML of the figures of one year of a timeline (units in every figure)."""
-    big = f'style="font-size:22px;font-weight:600;color:{palette.EDITED}"'
+    big = f'style="font-size:22px;font-weight:600;color:{plan_colour(state)}"'
     small = f'style="font-size:12px;color:{palette.MUTED}"'
     plan = state.timeline
     share = row["share_of_mature_pct"]
