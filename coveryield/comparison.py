@@ -203,7 +203,7 @@ class Comparison:
         (:meth:`timeline`) need not read it again.
     """
 
-    def __init__(self, plan_file: PlanFile, tiles: TileResults, climate=None):
+    def __init__(self, plan_file: PlanFile, tiles: TileResults, *, climate=None):
         self.plan_file = plan_file
         self.tiles = tiles
         self.climate = climate
