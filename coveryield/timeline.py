@@ -391,20 +391,17 @@ def _mixed_fluxes(
 
 def _tile_weights_by_year(tiles, shares: dict, n_years: int) -> np.ndarray:
     """Catchment-area weight of each tile in each year, shape (n_years, n_tiles) [-]."""
-    index = {tile: k for k, tile in enumerate(tiles.tiles)}
-    weights = np.zeros((n_years, len(tiles.tiles)))
-    for zone, by_cover in shares.items():
-        for cover, series in by_cover.items():
-            if not np.any(np.abs(series) > 1e-12):
-                continue
-            k = index.get((zone, cover))
-            if k is None:
-                raise PlanFileError(
-                    f"zone {zone!r}, cover {cover!r}: no such tile was "
-                    f"simulated; known covers: {', '.join(tiles.covers)}"
-                )
-            weights[:, k] += tiles.zone_area_share[zone] * series
-    return weights
+    return np.array(
+        [
+            tiles.weights(
+                {
+                    z: {c: float(v[t]) for c, v in by_cover.items() if abs(v[t]) > 1e-12}
+                    for z, by_cover in shares.items()
+                }
+            )
+            for t in range(n_years)
+        ]
+    )
 
 
 def _frame(
