@@ -261,6 +261,29 @@ def curve_evaporation(rain_mean_mm, et0_mean_mm, evap_mean_mm, bases):
 # Building and simulating the tiles
 
 
+def plan_climate(plan_file: PlanFile) -> Climate:
+    """Read the catchment's climate record from the file the plan file names.
+
+    Parameters
+    ----------
+    plan_file : PlanFile
+        The catchment (climate file, latitude [deg], elevation [m], wind height [m], coastal).
+
+    Returns
+    -------
+    Climate
+        The checked daily record.
+    """
+    spec = plan_file.catchment
+    return read_climate(
+        spec.climate,
+        latitude_deg=spec.latitude_deg,
+        elevation_m=spec.elevation_m,
+        wind_height_m=spec.wind_height_m,
+        coastal=spec.coastal,
+    )
+
+
 def zone_climates(plan_file: PlanFile, climate: Climate | None = None) -> dict[str, Climate]:
     """Each zone's climate: the catchment record with the zone's rain factor and temperature offset.
 
@@ -276,15 +299,8 @@ def zone_climates(plan_file: PlanFile, climate: Climate | None = None) -> dict[s
     dict of str -> Climate
         Zone name -> adjusted climate.
     """
-    spec = plan_file.catchment
     if climate is None:
-        climate = read_climate(
-            spec.climate,
-            latitude_deg=spec.latitude_deg,
-            elevation_m=spec.elevation_m,
-            wind_height_m=spec.wind_height_m,
-            coastal=spec.coastal,
-        )
+        climate = plan_climate(plan_file)
     return {
         zone.name: climate.adjusted(
             rain_factor=zone.rain_factor, temperature_offset_c=zone.temperature_offset_c

@@ -22,6 +22,7 @@ COMMANDS = {
     "covers": "covers",
     "demo": "demo",
     "serve": "serve",
+    "timeline": "timeline",
 }
 
 

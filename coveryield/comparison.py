@@ -21,7 +21,13 @@ from os import PathLike
 import numpy as np
 import pandas as pd
 
-from coveryield.catchment import MixedSeries, TileResults, mix_tiles, simulate_catchment
+from coveryield.catchment import (
+    MixedSeries,
+    TileResults,
+    mix_tiles,
+    plan_climate,
+    simulate_catchment,
+)
 from coveryield.flow_metrics import (
     LOW_FLOW_WINDOW_DAYS,
     LYNE_HOLLICK_ALPHA,
@@ -282,14 +288,19 @@ class Comparison:
         Parameter ensemble of the same tiles (see
         :func:`coveryield.uncertainty.ensemble.simulate_ensemble`); when given, headlines
         gain bands (:meth:`bands`). It may also be attached later (:attr:`ensemble`).
+    climate : Climate, optional
+        The climate record the tiles were simulated on; kept so that growing stands
+        (:meth:`timeline`) need not read it again (read on demand when not given).
     """
 
     def __init__(self, plan_file: PlanFile, tiles: TileResults, mixes: dict | None = None,
-                 ensemble: EnsembleResults | None = None):
+                 ensemble: EnsembleResults | None = None, *, climate=None):
         self.plan_file = plan_file
         self.tiles = tiles
         self._mixes = dict(mixes or {})
         self.ensemble = ensemble
+        self.climate = climate
+        self._stands = None
         rain = pd.Series(
             tiles.annual["rain_mm"] @ tiles.weights(plan_file.plans["current"]), index=tiles.years
         )
@@ -434,6 +445,86 @@ class Comparison:
             baseflow_index=outcome.baseflow_index - base.baseflow_index,
             days_below_per_year=days,
         )
+
+    # ---- years after planting --------------------------------------------------------------
+
+    def timeline(
+        self,
+        plans=None,
+        *,
+        years: int = 30,
+        start_year: int | None = None,
+        schedules=None,
+        progress: bool = False,
+    ):
+        """Follow plans year by year after planting, against ``current`` on the same weather.
+
+        Each year is a weighted sum of the tiles simulated once and of growing stands' stage
+        tiles (simulated once on first use; see :mod:`coveryield.stands`), so a new schedule
+        or horizon never re-runs the daily loop for stands already met.
+
+        Parameters
+        ----------
+        plans : str or list of str, optional
+            Plans to follow (default: every plan but ``current``).
+        years : int
+            Length of the timeline [yr]; the record's complete years are cycled in order when
+            it is shorter.
+        start_year : int, optional
+            Calendar year of the first year, a label only (default: the record's first
+            complete year).
+        schedules : dict of str -> coveryield.schedules.Schedule, optional
+            Schedules to use instead of the file's (checked as in a plan file); a plan without
+            a schedule is made all at once in year 1.
+        progress : bool
+            Show progress on stderr while new stands are simulated.
+
+        Returns
+        -------
+        coveryield.timeline.Timeline
+            Per plan, a table by year: yield, change against ``current`` [mm/yr, %, ML/yr],
+            the mature plan's change on the same weather, planted area and stand age.
+
+        Raises
+        ------
+        coveryield.errors.PlanFileError
+            Unknown plan, bad schedule, or a planting year outside the timeline.
+        """
+        from coveryield.timeline import build_timeline
+
+        return build_timeline(
+            self, plans, years=years, start_year=start_year, schedules=schedules, progress=progress
+        )
+
+    def stand_results(self, keys, *, progress: bool = False):
+        """Stage tiles of the given stands, simulating only those not simulated before.
+
+        Parameters
+        ----------
+        keys : iterable of coveryield.stands.StandKey
+            (zone, planted cover, young-state cover) of each stand needed.
+        progress : bool
+            Show progress on stderr while new stands are simulated.
+
+        Returns
+        -------
+        coveryield.stands.StandResults
+            Holding at least the stands asked for.
+        """
+        from coveryield.stands import StandResults, simulate_stands
+
+        keys = list(dict.fromkeys(keys))
+        known = self._stands.keys if self._stands is not None else ()
+        missing = [k for k in keys if k not in known]
+        if missing:
+            if self.climate is None:
+                self.climate = plan_climate(self.plan_file)
+            new = simulate_stands(self.plan_file, missing, climate=self.climate, progress=progress)
+            self._stands = new if self._stands is None else self._stands.merged(new)
+        if self._stands is None:  # no growing stand needed at all
+            empty = {name: np.zeros((len(self.years), 0, 0)) for name in self.tiles.annual}
+            return StandResults((), np.asarray(self.years), empty)
+        return self._stands
 
     # ---- tables over all plans ------------------------------------------------------------
 
@@ -733,16 +824,19 @@ def compare(plan: PlanFile | str | PathLike, *, progress: bool = False, cache=No
         For a malformed plan or climate file.
     """
     plan_file = plan if isinstance(plan, PlanFile) else load_plan(plan)
+    climate = None
     if cache:
         from coveryield.tile_cache import TileCache, cached_simulation
 
         cache = TileCache() if cache is True else cache
         tiles, mixes = cached_simulation(plan_file, cache, progress=progress)
     else:
-        tiles, mixes = simulate_catchment(plan_file, progress=progress), None
+        climate = plan_climate(plan_file)
+        tiles, mixes = simulate_catchment(plan_file, climate=climate, progress=progress), None
     members = None
     if ensemble is not None:
         from coveryield.uncertainty.ensemble import simulate_ensemble
 
-        members = simulate_ensemble(plan_file, ensemble, seed=seed, progress=progress)
-    return Comparison(plan_file, tiles, mixes, members)
+        members = simulate_ensemble(plan_file, ensemble, seed=seed, progress=progress,
+                                    climate=climate)
+    return Comparison(plan_file, tiles, mixes, members, climate=climate)

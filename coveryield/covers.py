@@ -16,6 +16,13 @@ References
    models. Canopy storage ~0.2 mm per unit LAI.
 .. [6] Gash, J. H. C., Lloyd, C. R. & Lachaud, G. (1995). Estimating sparse forest rainfall
    interception with an analytical model. J. Hydrol., 170, 79-86 (canopy cover fraction).
+.. [7] Brown, A. E. et al. (2013). J. Hydrol., doi:10.1016/j.jhydrol.2012.12.031: a permanent
+   change of forest cover takes 8-25 years to reach a new equilibrium (abstract).
+.. [8] Farley, K. A., Jobbagy, E. G., & Jackson, R. B. (2005). Global Change Biology 11,
+   1565-1576: afforestation losses grew with plantation age for at least 20 years (abstract).
+.. [9] Brown, A. E., Zhang, L., McMahon, T. A., Western, A. W., & Vertessy, R. A. (2005).
+   J. Hydrol. 310, 28-61: afforestation takes well over 5 years to reach a new equilibrium
+   (review of paired catchments; from memory).
 """
 
 from __future__ import annotations
@@ -30,6 +37,7 @@ from coveryield.physics.canopy import (
     canopy_capacity,
     canopy_cover_fraction,
 )
+from coveryield.physics.growth import chapman_richards, chapman_richards_rate
 
 BaseName = Literal["forest", "pasture", "crop", "water"]
 SOIL_GROUPS = ("A", "B", "C", "D")
@@ -244,6 +252,72 @@ class KcCalendar(BaseModel):
         return np.where(in_season, share, 0.0)
 
 
+class Growth(BaseModel):
+    """How a planted stand of a forest cover grows toward the cover's mature parameters.
+
+    A stand planted on other land starts from a young state (the cover it replaces, or
+    ``start``) and grows along the Chapman–Richards curve g(a) = (1 − e^(−k·a))^p, which reaches
+    95 % at the maturity age (:mod:`coveryield.physics.growth`). How g moves the stand's
+    parameters and its crown cover is described in :mod:`coveryield.stands`.
+
+    Parameters
+    ----------
+    maturity_years : float
+        Age at which the stand has grown 95 % of the way to its mature state [yr], > 0.
+    shape : float
+        Chapman–Richards exponent p [-], 1 to 10; p = 1 rises from the start, larger p gives
+        slow establishment years first.
+    rotation_years : int or None
+        Age at which stands are clear-felled and replanted (regrowth starts again from the
+        young state) [yr]; None: never felled.
+    start : str or None
+        Cover whose parameters a new stand starts from (a cover that derives from pasture);
+        None: the cover the planting replaces when that derives from pasture, else the
+        built-in ``pasture``.
+
+    References
+    ----------
+    Richards (1959); Chapman (1961) for the curve (from memory). Default ages: see
+    :data:`DEFAULT_GROWTH`.
+    """
+
+    model_config = ConfigDict(frozen=True, extra="forbid")
+
+    maturity_years: float = Field(20.0, gt=0.0, le=300.0)
+    shape: float = Field(1.5, ge=1.0, le=10.0)
+    rotation_years: int | None = Field(None, ge=2, le=500)
+    start: str | None = Field(None, min_length=1)
+
+    @property
+    def rate_per_year(self) -> float:
+        """Chapman–Richards rate constant k that gives 95 % at the maturity age [yr⁻¹]."""
+        return chapman_richards_rate(self.maturity_years, self.shape)
+
+    def fraction(self, age_years):
+        """Growth reached at an age: 0 at planting, 0.95 at the maturity age, toward 1 [-].
+
+        Parameters
+        ----------
+        age_years : float or array_like
+            Age since planting (or since the last felling) [yr].
+
+        Returns
+        -------
+        float or numpy.ndarray
+            g(a) = (1 − e^(−k·a))^p [-] (Richards 1959, eq. 1).
+        """
+        return chapman_richards(age_years, self.rate_per_year, self.shape)
+
+
+#: Growth of the built-in ``forest`` (an evergreen conifer plantation). Maturity at 20 years:
+#: Brown et al. (2013) give 8-25 years for a permanent change of forest cover to reach a new
+#: equilibrium and Farley et al. (2005) saw losses grow with plantation age for at least 20
+#: years (both abstracts); 20 years is our choice within that span. Shape p = 1.5: a slow
+#: establishment (small change in the first two years, Brown et al. 2005), our choice; fits of
+#: conifer height growth commonly give p between about 1 and 3 (from memory). No rotation.
+DEFAULT_GROWTH = Growth(maturity_years=20.0, shape=1.5)
+
+
 class Cover(BaseModel):
     """Parameters of one land cover.
 
@@ -284,6 +358,9 @@ class Cover(BaseModel):
     water_depth_m : float
         For open water: mean depth of the mixed water column, which sets how much heat the
         water stores [m].
+    growth : Growth or None
+        For covers that derive from forest: how a newly planted stand grows toward these
+        (mature) parameters over the years; None: the cover does not grow (a fixed stage).
     description : str
         Free text shown to users.
     """
@@ -304,6 +381,7 @@ class Cover(BaseModel):
     curve_number: dict[str, float]
     kc_calendar: KcCalendar | None = None
     water_depth_m: float = Field(2.0, gt=0.0, le=500.0)
+    growth: Growth | None = None
 
     @field_validator("curve_number")
     @classmethod
@@ -335,7 +413,17 @@ class Cover(BaseModel):
                 )
         if self.base == "crop" and self.kc_calendar is None:
             raise ValueError("a crop cover needs a kc_calendar")
+        if self.growth is not None and self.base != "forest":
+            raise ValueError(
+                f"a growth trajectory is only for covers that derive from forest; this cover "
+                f"derives from {self.base}"
+            )
         return self
+
+    @property
+    def grows(self) -> bool:
+        """True for a cover whose newly planted stands grow along a trajectory."""
+        return self.growth is not None
 
     @property
     def is_water(self) -> bool:
@@ -401,6 +489,7 @@ def _builtin_covers() -> dict[str, Cover]:
         rooting_depth_m=1.5,  # FAO-56 Table 22, conifer trees 1.0-1.5 m
         depletion_fraction=0.70,  # FAO-56 Table 22, conifer trees
         curve_number={"A": 30, "B": 55, "C": 70, "D": 77},  # TR-55 woods, good (from memory)
+        growth=DEFAULT_GROWTH,  # maturity 20 yr, p 1.5: see DEFAULT_GROWTH for the sources
     )
     pasture = Cover(
         name="pasture",

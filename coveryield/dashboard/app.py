@@ -71,8 +71,9 @@ class Dashboard(widgets.VBox):
     ----------
     state : DashboardState
         The choices and results; set them from Python to drive the page.
-    controls, headline, charts, errors : views
-        The parts of the page; ``manager`` is None in read-only mode.
+    controls, headline, charts, errors, timeline : views
+        The parts of the page; ``manager`` is None in read-only mode, ``timeline`` (years after
+        planting) None when the file has no plan besides ``current``.
     uncertainty : EnsemblePanel
         Estimates bands on the headlines from a parameter ensemble, with a progress bar.
     """
@@ -91,6 +92,7 @@ class Dashboard(widgets.VBox):
         self.manager = None if self.read_only else ManagerControls(
             self.state, self.guard, self.plan_path)
         self.uncertainty = EnsemblePanel(self.state, self.guard)
+        self.timeline = _timeline_view(comparison, self.guard)
         left = [self.controls.widget] + ([self.manager.widget] if self.manager else [])
         left.append(self.uncertainty.widget)
         super().__init__(
@@ -102,6 +104,7 @@ class Dashboard(widgets.VBox):
                               self.headline.widget],
                              layout=widgets.Layout(flex_flow="row wrap", width="100%")),
                 self.charts.widget,
+                *([self.timeline.widget] if self.timeline is not None else []),
                 self._footer(),
             ],
             layout=widgets.Layout(padding="8px 16px", max_width="1280px"),
@@ -141,6 +144,16 @@ class Dashboard(widgets.VBox):
             "volumes (ML; 1 ML = 1000 m\u00b3). Evaporation check: Zhang et al. (2001) curve and "
             f"Fu's form of the Budyko framework. {html.escape(CAUTION)}</div>"
         )
+
+
+def _timeline_view(comparison: Any, guard: Guard) -> Any:
+    """Build the years-after-planting view (None when the file has no plan besides current)."""
+    if len(comparison.plan_names) < 2:
+        return None
+    from coveryield.dashboard.timeline_state import TimelineState
+    from coveryield.dashboard.timeline_view import TimelineView
+
+    return TimelineView(TimelineState(comparison), guard)
 
 
 def env_read_only(default: bool = False) -> bool:
