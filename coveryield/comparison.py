@@ -17,6 +17,7 @@ from __future__ import annotations
 import functools
 from dataclasses import dataclass
 from os import PathLike
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
@@ -44,7 +45,10 @@ from coveryield.physics.curves import (
     crosscheck_reason,
 )
 from coveryield.plans import PlanFile, load_plan, validate_shares
-from coveryield.uncertainty.ensemble import BAND_PERCENTILES, EnsembleResults, band
+from coveryield.uncertainty.bands import BAND_PERCENTILES, band
+
+if TYPE_CHECKING:  # the engine (numba) loads only when an ensemble is simulated
+    from coveryield.uncertainty.ensemble import EnsembleResults
 
 CAUTION = (
     "Screening estimate only: confirm with licensed hydrological practice and local regulations "

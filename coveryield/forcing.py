@@ -254,6 +254,36 @@ def _canopy_rates(index, col, site, cover, rates, compiled):
     )
 
 
+def _land_rates_compiled(index, col, site, cover, rates, et0_mm):
+    """Fill the three rates of a land cover without a crop calendar in one compiled pass."""
+    from .physics.fused import cover_rates_dated
+
+    wind_factor, inv_ra_per_wind = canopy_wind_terms(
+        float(site.wind_height_m), float(cover.height_m)
+    )
+    cover_rates_dated(
+        col["tmax_c"],
+        col["tmin_c"],
+        col["ea_kpa"],
+        col["rs_mj"],
+        col["wind_ms"],
+        _dates(index),
+        site.latitude_deg,
+        site.elevation_m,
+        albedo=cover.albedo,
+        rs_s_per_m=cover.rs_s_per_m,
+        wind_factor=wind_factor,
+        inv_ra_per_wind=inv_ra_per_wind,
+        min_wind_ms=MIN_WIND_FOR_RESISTANCE_MS,
+        wind_factor_2m=_wind_factor_to_2m(float(site.wind_height_m)),
+        height_m=cover.height_m,
+        et0_mm=et0_mm,
+        dry_mm=rates[:, 0],
+        wet_mm=rates[:, 1],
+        soil_mm=rates[:, 2],
+    )
+
+
 def _open_water_rate(col, doy, site, cover):
     """Open-water evaporation with the water body's heat storage [mm d-1]."""
     evaporation, _, _ = open_water_evaporation(
@@ -350,6 +380,9 @@ def cover_evaporation(climate, cover, et0_mm=None):
     # columns contiguous (Fortran order); np.empty reuses freed memory where np.zeros would
     # take fresh pages from the system, whose first writes cost more than filling a column
     rates = np.empty((len(index), len(EVAPORATION_COLUMNS)), order="F")
+    if compiled and not cover.is_water and cover.kc_calendar is None:
+        _land_rates_compiled(index, col, site, cover, rates, et0_mm)  # dew already set to 0
+        return pd.DataFrame(rates, index=index, columns=_EVAPORATION_INDEX, copy=False)
     rates[:, 2] = 0.0  # bare soil: none unless a branch below sets it
     if cover.is_water:
         water = _open_water_rate(col, _day_of_year(index, compiled), site, cover)

@@ -758,6 +758,119 @@ def canopy_evaporation_kernel(
                 )
 
 
+# ------------------------------------------------------------------ a land cover's three rates
+
+
+@njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")
+def _soil_energy_day(et0, dry, wind2, ea, exp_max, height_factor):  # pragma: no cover - compiled
+    """(Kc,max ETo - E_dry)+ of one day, FAO-56 eqs. 10, 71 and 72 [mm d-1]; NaN stays NaN."""
+    et0 = 0.0 if et0 < 0.0 else et0
+    kcb = dry / et0 if et0 > 0.0 else 0.0  # the dry-canopy rate stands in for Kcb ETo
+    u2 = 1.0 if wind2 < 1.0 else wind2  # eq. 72 applies for u2 in 1-6 m s-1
+    u2 = 6.0 if u2 > 6.0 else u2
+    rh_min = 100.0 * ea / (SATURATION_A_KPA * exp_max)  # FAO-56 eq. 10 at Tmax
+    rh_min = 20.0 if rh_min < 20.0 else rh_min  # and RHmin in 20-80 %
+    rh_min = 80.0 if rh_min > 80.0 else rh_min
+    kc_max = 1.2 + (0.04 * (u2 - 2.0) - 0.004 * (rh_min - 45.0)) * height_factor  # eq. 72
+    wetted = kcb + 0.05
+    kc_max = wetted if wetted > kc_max else kc_max
+    energy = kc_max * et0 - dry  # FAO-56 eq. 71 with Kr = 1
+    return 0.0 if energy < 0.0 else energy
+
+
+@njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")
+def _cover_day(
+    tmax, tmin, ea, rs, wind, inv_rso, exp_max, es, delta, pressure, gamma, et0_given, et0_in,
+    albedo, rs_s_per_m, wind_factor, inv_ra_per_wind, min_wind, wind_factor_2m, height_factor,
+    cn, cd, sigma, rs_rso_lower, vpd_floor,
+):  # pragma: no cover - compiled
+    """Dry, wet and soil rates of one day of a land cover [mm d-1] (ETo computed if not given)."""
+    wind2 = wind_factor_2m * wind  # FAO-56 eq. 47 as a factor
+    if et0_given:
+        et0 = et0_in
+    else:
+        et0 = _reference_day(tmax, tmin, ea, rs, wind2, inv_rso, es, delta, gamma, cn, cd,
+                             sigma, rs_rso_lower, vpd_floor)  # FAO-56 eq. 6
+    dry, wet = _canopy_day(tmax, tmin, ea, rs, wind, inv_rso, es, delta, pressure, gamma,
+                           albedo, rs_s_per_m, wind_factor, inv_ra_per_wind, min_wind)
+    return dry, wet, _soil_energy_day(et0, dry, wind2, ea, exp_max, height_factor)
+
+
+@njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")
+def _cover_days(
+    tmax_c, tmin_c, ea_kpa, rs_mj, wind_ms, pressure, gamma, et0_given, et0_mm, albedo,
+    rs_s_per_m, wind_factor, inv_ra_per_wind, min_wind_ms, wind_factor_2m, height_factor, cn, cd,
+    sigma, rs_rso_lower, vpd_floor, dry_mm, wet_mm, soil_mm,
+):  # pragma: no cover - compiled
+    """The vectorizable day loop of :func:`cover_rates_kernel`; returns the count of days whose
+    exponents the polynomial exp does not cover. ``soil_mm`` holds 1/Rso on entry."""
+    outside = 0
+    for d in range(tmax_c.shape[0]):
+        tmax = tmax_c[d]
+        tmin = tmin_c[d]
+        x_max, x_min, x_mean, inv_mean = _exponents(tmax, tmin)
+        outside += _outside(x_max, x_min, x_mean)
+        exp_max = _exp_poly(x_max)
+        es, delta = _saturation(exp_max, _exp_poly(x_min), _exp_poly(x_mean), inv_mean,
+                                _FAO56_SLOPE_COEFFICIENT)
+        dry_mm[d], wet_mm[d], soil_mm[d] = _cover_day(
+            tmax, tmin, ea_kpa[d], rs_mj[d], wind_ms[d], soil_mm[d], exp_max, es, delta,
+            pressure, gamma, et0_given, et0_mm[d], albedo, rs_s_per_m, wind_factor,
+            inv_ra_per_wind, min_wind_ms, wind_factor_2m, height_factor, cn, cd, sigma,
+            rs_rso_lower, vpd_floor,
+        )
+    return outside
+
+
+@njit(cache=True, error_model="numpy", fastmath=_FASTMATH)
+def cover_rates_kernel(
+    tmax_c, tmin_c, ea_kpa, rs_mj, wind_ms, dates, units_per_day, inv_rso_table, elevation_m,
+    et0_mm, albedo, rs_s_per_m, wind_factor, inv_ra_per_wind, min_wind_ms, wind_factor_2m,
+    height_factor, cn, cd, sigma, rs_rso_lower, vpd_floor, dry_mm, wet_mm, soil_mm,
+):  # pragma: no cover - compiled
+    """Dry canopy, wet canopy and soil-surface rates of a land cover, filled in place.
+
+    As :func:`canopy_evaporation_kernel`, plus in the same pass the energy left for soil
+    evaporation, (Kc,max ETo - E_dry)+ with Kc,max from FAO-56 eq. 72 (u2 and RHmin limited to
+    1-6 m s-1 and 20-80 %, RHmin by eq. 10 at Tmax) and ETo from ``et0_mm`` or, when that is
+    empty, from FAO-56 eq. 6 with ``cn``, ``cd``, ``sigma``, ``rs_rso_lower`` and ``vpd_floor``
+    of the FAO-56 grass reference. ``wind_factor_2m`` brings the station wind to 2 m (eq. 47);
+    ``height_factor`` is (h/3)^0.3 of the cover's height h [-]. ``soil_mm`` first holds 1/Rso.
+    """
+    n = tmax_c.shape[0]
+    et0_given = et0_mm.shape[0] == n
+    _daily_table_values(inv_rso_table, _NO_DATES, dates, units_per_day, soil_mm)  # 1/Rso first
+    pressure, gamma = _site_psychrometric_constant(elevation_m)
+    if et0_given:  # two loops, so that neither tests the flag day by day
+        outside = _cover_days(
+            tmax_c, tmin_c, ea_kpa, rs_mj, wind_ms, pressure, gamma, True, et0_mm, albedo,
+            rs_s_per_m, wind_factor, inv_ra_per_wind, min_wind_ms, wind_factor_2m,
+            height_factor, cn, cd, sigma, rs_rso_lower, vpd_floor, dry_mm, wet_mm, soil_mm,
+        )
+    else:
+        outside = _cover_days(
+            tmax_c, tmin_c, ea_kpa, rs_mj, wind_ms, pressure, gamma, False, soil_mm, albedo,
+            rs_s_per_m, wind_factor, inv_ra_per_wind, min_wind_ms, wind_factor_2m,
+            height_factor, cn, cd, sigma, rs_rso_lower, vpd_floor, dry_mm, wet_mm, soil_mm,
+        )
+    if outside:
+        for d in range(n):
+            tmax = tmax_c[d]
+            tmin = tmin_c[d]
+            x_max, x_min, x_mean, inv_mean = _exponents(tmax, tmin)
+            if _outside(x_max, x_min, x_mean):
+                exp_max = math.exp(x_max)
+                es, delta = _saturation(exp_max, math.exp(x_min), math.exp(x_mean), inv_mean,
+                                        _FAO56_SLOPE_COEFFICIENT)
+                dry_mm[d], wet_mm[d], soil_mm[d] = _cover_day(
+                    tmax, tmin, ea_kpa[d], rs_mj[d], wind_ms[d],
+                    _table_value(inv_rso_table, _NO_DATES, dates, units_per_day, d), exp_max, es,
+                    delta, pressure, gamma, et0_given, et0_mm[d] if et0_given else 0.0, albedo,
+                    rs_s_per_m, wind_factor, inv_ra_per_wind, min_wind_ms, wind_factor_2m,
+                    height_factor, cn, cd, sigma, rs_rso_lower, vpd_floor,
+                )
+
+
 # ------------------------------------------------------------------------------ entry points
 
 
@@ -1020,6 +1133,59 @@ def canopy_evaporation_dated(
         wet_mm,
     )
     return dry_mm, wet_mm
+
+
+def cover_rates_dated(
+    tmax_c, tmin_c, ea_kpa, rs_mj, wind_ms, dates, lat_deg, elevation_m, *, albedo, rs_s_per_m,
+    wind_factor, inv_ra_per_wind, min_wind_ms, wind_factor_2m, height_m, et0_mm=None,
+    dry_mm=None, wet_mm=None, soil_mm=None,
+):
+    """Dry canopy, wet canopy and soil-surface rates of a land cover in one compiled pass.
+
+    Parameters
+    ----------
+    tmax_c, tmin_c, ea_kpa, rs_mj, wind_ms, dates, lat_deg, elevation_m, albedo, rs_s_per_m,
+    wind_factor, inv_ra_per_wind, min_wind_ms, dry_mm, wet_mm
+        As for :func:`canopy_evaporation_dated` (°C, kPa, MJ m-2 d-1, station wind m s-1, °,
+        m, -, s m-1, -, -, m s-1, mm d-1).
+    wind_factor_2m : float
+        Wind at 2 m over grass per unit station wind (FAO-56 eq. 47) [-].
+    height_m : float
+        Canopy height of the cover, for Kc,max (FAO-56 eq. 72) [m].
+    et0_mm : array_like, optional
+        FAO-56 grass reference evaporation of the same days [mm d-1]; computed in the same pass
+        (FAO-56 eq. 6) when omitted.
+    soil_mm : numpy.ndarray of float64, optional
+        Contiguous array to fill with the soil-surface rate; new when omitted.
+
+    Returns
+    -------
+    dry_mm, wet_mm, soil_mm : numpy.ndarray
+        Dry-canopy and wet-canopy Penman-Monteith rates (dew set to 0) and the energy left for
+        soil evaporation, (Kc,max ETo - E_dry)+ [mm d-1].
+
+    References
+    ----------
+    FAO-56 (Allen et al. 1998), eqs. 3, 4, 6, 10, 37-40, 47, 71 and 72; Monteith (1965).
+    """
+    arrays = _same_length(float_arrays(tmax_c, tmin_c, ea_kpa, rs_mj, wind_ms), dates)
+    counts, units_per_day = dates_as_counts(dates)
+    n = counts.shape[0]
+    et0 = np.empty(0) if et0_mm is None else np.ascontiguousarray(et0_mm, dtype=np.float64)
+    if et0_mm is not None and et0.shape != (n,):
+        raise ValueError(f"et0_mm has {et0.shape} values; expected ({n},), one per day")
+    dry_mm = np.empty(n) if dry_mm is None else dry_mm
+    wet_mm = np.empty(n) if wet_mm is None else wet_mm
+    soil_mm = np.empty(n) if soil_mm is None else soil_mm
+    m = reference_method("fao56")
+    cover_rates_kernel(
+        *arrays, counts, units_per_day, site_inverse_clear_sky(lat_deg, elevation_m),
+        float(elevation_m), et0, float(albedo), float(rs_s_per_m), float(wind_factor),
+        float(inv_ra_per_wind), float(min_wind_ms), float(wind_factor_2m),
+        float((float(height_m) / 3.0) ** 0.3), float(m.cn), float(m.cd), float(m.sigma),
+        float(m.rs_rso_lower), float(m.vpd_floor), dry_mm, wet_mm, soil_mm,
+    )
+    return dry_mm, wet_mm, soil_mm
 
 
 def _same_length(arrays, dates):

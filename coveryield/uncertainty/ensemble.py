@@ -36,34 +36,16 @@ from coveryield.climate import Climate
 from coveryield.engine.water_balance import TileParameters, simulate_tiles
 from coveryield.forcing import reference_et
 from coveryield.plans import PlanFile
+from coveryield.uncertainty.bands import BAND_PERCENTILES, band
 from coveryield.uncertainty.sampling import EnsembleDesign
 
 __all__ = ["EnsembleResults", "simulate_ensemble", "band", "BAND_PERCENTILES",
            "DEFAULT_MEMORY_MB"]
 
-#: Percentiles reported as a band: lower end, middle, upper end [%].
-BAND_PERCENTILES = (5.0, 50.0, 95.0)
 #: Memory the forcing of one chunk of members may take [MB] (four float64 arrays, n_days x
 #: n_tiles per member).
 DEFAULT_MEMORY_MB = 64.0
 
-
-def band(values) -> tuple[float, float, float]:
-    """Take the 5th, 50th and 95th percentiles of member values.
-
-    Parameters
-    ----------
-    values : array_like
-        One value per member [any unit].
-
-    Returns
-    -------
-    tuple of float
-        (p05, p50, p95) [unit of ``values``], by numpy's linear interpolation between order
-        statistics.
-    """
-    p05, p50, p95 = np.percentile(np.asarray(values, dtype=float), BAND_PERCENTILES)
-    return float(p05), float(p50), float(p95)
 
 
 @dataclass(frozen=True)

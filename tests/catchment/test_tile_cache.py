@@ -368,3 +368,28 @@ def test_cache_command_shows_and_clears(tmp_path, monkeypatch, capsys):
     assert main(["cache", "--clear"]) == 0
     assert "removed 1 cached result(s)" in capsys.readouterr().out
     assert TileCache().entries() == []
+
+
+NO_COMPILER = """
+import sys
+from coveryield.cli import main
+assert main(["compare", sys.argv[1]]) == 0
+print("numba loaded:", "numba" in sys.modules)
+"""
+
+
+def test_a_cache_hit_answers_without_loading_the_compiler(tmp_path):
+    # issue 11: a warm `compare` answers fast; the compiler runtime (numba, which also loads
+    # scipy.linalg, ~0.25 s together) is not needed when the tiles and mixes come from the cache
+    import subprocess
+    import sys
+
+    plan_path = write_plan(tmp_path / "a")
+    env = dict(os.environ, COVERYIELD_CACHE_DIR=str(tmp_path / "cache"))
+    run = [sys.executable, "-c", NO_COMPILER, str(plan_path)]
+    first = subprocess.run(run, capture_output=True, text=True, env=env, timeout=300)
+    assert first.returncode == 0, first.stderr[-2000:]
+    assert "numba loaded: True" in first.stdout  # a miss simulates
+    second = subprocess.run(run, capture_output=True, text=True, env=env, timeout=300)
+    assert second.returncode == 0, second.stderr[-2000:]
+    assert "numba loaded: False" in second.stdout

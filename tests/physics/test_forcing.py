@@ -279,3 +279,19 @@ def test_cover_evaporation_columns_are_contiguous_float64(climate):
     frame = forcing.cover_evaporation(climate, BUILTIN_COVERS["pasture"])
     assert (frame.dtypes == np.float64).all()
     assert frame["dry_mm"].to_numpy().flags.c_contiguous
+
+
+@pytest.mark.parametrize("name", ["forest", "pasture"])
+def test_compiled_cover_rates_take_a_given_et0_as_the_numpy_chain_does(monkeypatch, name):
+    # ETo computed inside the one-pass kernel or passed in: the same three rates (FAO-56 eqs.
+    # 6, 71, 72 in both paths; design property), to 1e-9 mm/d
+    clim = stand_in_climate(_daily(n_days=800, seed=11), LAT, ELEV)
+    et0 = forcing.reference_et(clim)
+    monkeypatch.setattr(forcing, "_compiled_path", lambda n_days: False)
+    numpy_path = forcing.cover_evaporation(clim, BUILTIN_COVERS[name], et0_mm=et0)
+    monkeypatch.setattr(forcing, "_compiled_path", lambda n_days: True)
+    given = forcing.cover_evaporation(clim, BUILTIN_COVERS[name], et0_mm=et0)
+    inside = forcing.cover_evaporation(clim, BUILTIN_COVERS[name])
+    np.testing.assert_allclose(given.to_numpy(), numpy_path.to_numpy(), rtol=0, atol=1e-9)
+    np.testing.assert_allclose(inside.to_numpy(), given.to_numpy(), rtol=0, atol=1e-9)
+    assert (given["soil_mm"] > 0).any()
