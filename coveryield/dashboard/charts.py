@@ -24,7 +24,6 @@ import bqplot
 import ipywidgets as widgets
 import numpy as np
 
-from coveryield.comparison import YIELD_DEFINITION
 from coveryield.dashboard import palette
 from coveryield.dashboard.state import DashboardState
 from coveryield.dashboard.views import Guard
@@ -287,8 +286,9 @@ class MonthlyFlowChart(Chart):
 
     key = "monthly-flow"
     title = "Mean monthly streamflow"
-    note = (f"{YIELD_DEFINITION} Streamflow routes quickflow through a fast store, drainage and "
-            "the open-water balance through the groundwater store.")
+    note = ("Streamflow at the outlet: quickflow routed through a fast store, drainage and the "
+            "open-water balance through the groundwater store (the yield itself is defined "
+            "below the charts).")
 
     def __init__(self, state: DashboardState) -> None:
         super().__init__(state)
