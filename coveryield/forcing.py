@@ -224,6 +224,23 @@ def canopy_rates_numpy(col, doy, site, cover):
     return np.maximum(dry, 0.0), np.maximum(wet, 0.0)
 
 
+def _compiled_canopy_inputs(index, col, site, cover):
+    """Arguments the compiled canopy kernels share: the record, the site and the cover's terms."""
+    wind_factor, inv_ra_per_wind = canopy_wind_terms(
+        float(site.wind_height_m), float(cover.height_m)
+    )
+    record = (col["tmax_c"], col["tmin_c"], col["ea_kpa"], col["rs_mj"], col["wind_ms"],
+              _dates(index), site.latitude_deg, site.elevation_m)
+    terms = {
+        "albedo": cover.albedo,
+        "rs_s_per_m": cover.rs_s_per_m,
+        "wind_factor": wind_factor,
+        "inv_ra_per_wind": inv_ra_per_wind,
+        "min_wind_ms": MIN_WIND_FOR_RESISTANCE_MS,
+    }
+    return record, terms
+
+
 def _canopy_rates(index, col, site, cover, rates, compiled):
     """Fill columns 0 and 1 of ``rates`` with the dry and wet canopy rates [mm d-1]."""
     if not compiled:
@@ -232,49 +249,18 @@ def _canopy_rates(index, col, site, cover, rates, compiled):
         return
     from .physics.fused import canopy_evaporation_dated
 
-    wind_factor, inv_ra_per_wind = canopy_wind_terms(
-        float(site.wind_height_m), float(cover.height_m)
-    )
-    canopy_evaporation_dated(
-        col["tmax_c"],
-        col["tmin_c"],
-        col["ea_kpa"],
-        col["rs_mj"],
-        col["wind_ms"],
-        _dates(index),
-        site.latitude_deg,
-        site.elevation_m,
-        albedo=cover.albedo,
-        rs_s_per_m=cover.rs_s_per_m,
-        wind_factor=wind_factor,
-        inv_ra_per_wind=inv_ra_per_wind,
-        min_wind_ms=MIN_WIND_FOR_RESISTANCE_MS,
-        dry_mm=rates[:, 0],
-        wet_mm=rates[:, 1],
-    )
+    record, terms = _compiled_canopy_inputs(index, col, site, cover)
+    canopy_evaporation_dated(*record, **terms, dry_mm=rates[:, 0], wet_mm=rates[:, 1])
 
 
 def _land_rates_compiled(index, col, site, cover, rates, et0_mm):
     """Fill the three rates of a land cover without a crop calendar in one compiled pass."""
     from .physics.fused import cover_rates_dated
 
-    wind_factor, inv_ra_per_wind = canopy_wind_terms(
-        float(site.wind_height_m), float(cover.height_m)
-    )
+    record, terms = _compiled_canopy_inputs(index, col, site, cover)
     cover_rates_dated(
-        col["tmax_c"],
-        col["tmin_c"],
-        col["ea_kpa"],
-        col["rs_mj"],
-        col["wind_ms"],
-        _dates(index),
-        site.latitude_deg,
-        site.elevation_m,
-        albedo=cover.albedo,
-        rs_s_per_m=cover.rs_s_per_m,
-        wind_factor=wind_factor,
-        inv_ra_per_wind=inv_ra_per_wind,
-        min_wind_ms=MIN_WIND_FOR_RESISTANCE_MS,
+        *record,
+        **terms,
         wind_factor_2m=_wind_factor_to_2m(float(site.wind_height_m)),
         height_m=cover.height_m,
         et0_mm=et0_mm,

@@ -354,6 +354,21 @@ def check_output_folder(
     return target
 
 
+def as_output_folder(
+    out_dir: OutputFolder | str | os.PathLike,
+    names: Iterable[str],
+    *,
+    force: bool = False,
+    inputs: Inputs | None = None,
+    retire: Iterable[str] = (),
+) -> OutputFolder:
+    """Return ``out_dir`` if already checked (the command line checks before any work), else
+    check the path now with :func:`check_output_folder` (the Python API)."""
+    if isinstance(out_dir, OutputFolder):
+        return out_dir
+    return check_output_folder(out_dir, names, force=force, inputs=inputs, retire=retire)
+
+
 def write_new_folder(target: str | os.PathLike, fill: Callable[[Path], None]) -> Path:
     """Create a NEW folder holding what ``fill`` puts in it (and a manifest), all or nothing.
 

@@ -324,10 +324,8 @@ def write_calibration_outputs(result: CalibrationResult, out_dir, *, force: bool
     coveryield.errors.OutputError
         If the folder cannot take the outputs, or cannot be written.
     """
-    from coveryield.output_folder import OutputFolder, check_output_folder
+    from coveryield.output_folder import as_output_folder
 
-    target = out_dir
-    if not isinstance(target, OutputFolder):
-        inputs = result.plan_file.input_files() if inputs is None else inputs
-        target = check_output_folder(out_dir, CALIBRATION_FILES, force=force, inputs=inputs)
+    inputs = result.plan_file.input_files() if inputs is None else inputs
+    target = as_output_folder(out_dir, CALIBRATION_FILES, force=force, inputs=inputs)
     return target.write(lambda folder: _write_all(result, folder))

@@ -16,7 +16,7 @@ from coveryield.comparison import CAUTION, YIELD_DEFINITION, Comparison
 from coveryield.output_folder import (
     MANIFEST_NAME,
     OutputFolder,
-    check_output_folder,
+    as_output_folder,
     write_new_folder,
 )
 from coveryield.physics.curves import CROSSCHECK_TYPICAL_OFFSET_PCT, ZHANG_CURVE_SENTENCE
@@ -339,14 +339,6 @@ def _write_all(result: Comparison, folder: Path) -> None:
         result.ensemble_table().to_csv(folder / ENSEMBLE_FILE, index=False, float_format="%.4f")
 
 
-def _declared(target: OutputFolder | str | os.PathLike, force: bool, inputs,
-              *, ensemble: bool) -> OutputFolder:
-    if isinstance(target, OutputFolder):
-        return target
-    return check_output_folder(target, output_files(ensemble=ensemble), force=force,
-                               inputs=inputs, retire=() if ensemble else (ENSEMBLE_FILE,))
-
-
 def write_outputs(
     result: Comparison,
     out_dir: OutputFolder | str | os.PathLike,
@@ -386,5 +378,7 @@ def write_outputs(
     """
     if inputs is None:
         inputs = result.plan_file.input_files()
-    target = _declared(out_dir, force, inputs, ensemble=result.ensemble is not None)
+    ensemble = result.ensemble is not None
+    target = as_output_folder(out_dir, output_files(ensemble=ensemble), force=force,
+                              inputs=inputs, retire=() if ensemble else (ENSEMBLE_FILE,))
     return target.write(lambda folder: _write_all(result, folder))

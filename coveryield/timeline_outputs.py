@@ -123,13 +123,11 @@ def write_timeline_outputs(
     coveryield.errors.OutputError
         If the folder cannot take the outputs, or cannot be written.
     """
-    from coveryield.output_folder import OutputFolder, check_output_folder
+    from coveryield.output_folder import as_output_folder
     from coveryield.report_timeline import render_timeline_report
 
-    target = out_dir
-    if not isinstance(target, OutputFolder):
-        target = check_output_folder(out_dir, TIMELINE_FILES, force=force,
-                                     inputs=result.plan_file.input_files())
+    target = as_output_folder(out_dir, TIMELINE_FILES, force=force,
+                              inputs=result.plan_file.input_files())
     page = render_timeline_report(result, timeline)  # before touching the disk
     table = timeline.table()
 
