@@ -54,33 +54,41 @@ from coveryield.physics.fused import _exp_poly
 #: Tiles per block of the blocked parameter and state arrays.
 BLOCK = 32
 
-# Rows of the blocked parameter array.
-P_CAPACITY = 0  # canopy storage per unit LAI [mm]; WATER_CAPACITY marks an open-water tile
-P_INV_RAIN_RATE = 1  # 1 / rainfall intensity [h mm⁻¹]
-P_RETENTION_DRY = 2  # SCS retention S for AMC I [mm]
-P_RETENTION_AVERAGE = 3  # SCS retention S for AMC II [mm]
-P_RETENTION_WET = 4  # SCS retention S for AMC III [mm]
-P_TAW = 5  # total available water [mm]
-P_INV_TAW = 6  # 1 / TAW [mm⁻¹]
-P_INV_READILY_SPAN = 7  # 1 / ((1 − p)·TAW) [mm⁻¹]
-P_TEW = 8  # total evaporable water of the surface layer [mm]
+# Rows of the blocked parameter array. Everything that is constant per tile is derived once
+# here, so the day loop spends no operation on it (see the Speed section).
+P_INV_RAIN_RATE = 0  # 1 / rainfall intensity [h mm⁻¹]
+P_RETENTION_LOW = 1  # SCS retention on the dry half, S = low + low_slope·store: S(AMC I) [mm]
+P_RETENTION_LOW_SLOPE = 2  # 2·(S(AMC II) − S(AMC I)) / TAW [-]
+P_RETENTION_HIGH = 3  # on the wet half, S = high + high_slope·store: 2·S(II) − S(III) [mm]
+P_RETENTION_HIGH_SLOPE = 4  # 2·(S(AMC III) − S(AMC II)) / TAW [-]
+P_HALF_TAW = 5  # TAW / 2, where the wet half starts [mm]
+P_TAW = 6  # total available water [mm]; 0 on an open-water tile
+P_INV_READILY_SPAN = 7  # 1 / ((1 − p)·TAW) [mm⁻¹]; 0 on an open-water tile
+P_TEW = 8  # total evaporable water of the surface layer [mm]; 0 on an open-water tile
 P_INV_STAGE2_SPAN = 9  # 1 / (TEW − REW) [mm⁻¹]
-N_PAR = 10
+P_WATER = 10  # 1.0 on an open-water tile, else 0.0 [-]
+N_PAR = 11
 
-#: Canopy capacity that marks an open-water tile (any negative value does) [mm].
-WATER_CAPACITY = -1.0
+# Rows of the canopy array ``canopy[row, day, tile]`` (or ``canopy[row, 0, tile]`` when the leaf
+# area does not change): what the day's leaf area sets, computed before the day loop.
+C_CAPACITY = 0  # canopy storage capacity S = capacity per LAI × LAI [mm]; 0 on open water
+C_COVER = 1  # canopy cover fraction c = 1 − exp(−k·LAI) [-]; 0 on open water
+C_INV_EXPOSED = 2  # 1 / max(1 − c, MIN_EXPOSED) [-]
+N_CANOPY = 3
 
-# Rows of the blocked state array: the stores, then the running sums of the current year [mm].
+# Rows of the blocked state array: the stores, the input check, then the running sums of the
+# current year [mm].
 S_CANOPY = 0  # canopy store per unit ground area [mm]
 S_SOIL = 1  # root-zone store above wilting point [mm]
 S_SURFACE = 2  # depletion of the surface layer's exposed share (FAO-56 De) [mm]
-S_RAIN = 3  # rain; NaN once a day of the year had an invalid input
-S_WET_SURFACE = 4  # interception (land tile) or open-water evaporation (water tile)
-S_TRANSPIRATION = 5
-S_SOIL_EVAP = 6
-S_QUICKFLOW = 7
-S_DRAINAGE = 8
-N_STATE = 9
+S_LOWEST_INPUT = 3  # smallest forcing value so far (negative: an invalid input) [mm d⁻¹]
+S_RAIN = 4  # rain; NaN (or inf) once a day of the year had a non-finite input
+S_WET_SURFACE = 5  # interception (land tile) or open-water evaporation (water tile)
+S_TRANSPIRATION = 6
+S_SOIL_EVAP = 7
+S_QUICKFLOW = 8
+S_DRAINAGE = 9
+N_STATE = 10
 
 #: Rows of the annual output ``annual[row, year, tile]`` [mm].
 ANNUAL_NAMES = (
@@ -244,23 +252,37 @@ _POLY_EXP_MIN = -16.0
 
 
 @njit(cache=True, error_model="numpy")
-def cover_fraction_rows(lai, extinction, out):
-    """Canopy cover fraction c = 1 − exp(−k·LAI) (Beer's law) of every day and tile.
+def canopy_rows(lai, capacity_per_lai, extinction, closed, land, out):
+    """What each day's leaf area sets: canopy capacity, cover fraction and 1 / exposed share.
 
     Parameters
     ----------
     lai : ndarray, shape (n_rows, n_tiles)
         Leaf area index, ≥ 0 [m² m⁻²].
+    capacity_per_lai : ndarray, shape (n_tiles,)
+        Canopy storage per unit LAI, ≥ 0 [mm].
     extinction : ndarray, shape (n_tiles,)
         Extinction coefficient k of each tile, > 0 [-].
-    out : ndarray, shape (n_rows, n_tiles)
-        Filled with c [-].
+    closed : bool
+        True: every canopy is closed (cover 1 whatever the leaf area) [-].
+    land : ndarray, shape (n_tiles,)
+        1.0 for a land tile, 0.0 for open water (no canopy: capacity and cover 0) [-].
+    out : ndarray, shape (N_CANOPY, n_rows, n_tiles)
+        Filled with the rows ``C_*``: capacity S = capacity_per_lai·LAI [mm], cover
+        c = 1 − exp(−k·LAI) (Beer's law) [-] and 1 / max(1 − c, MIN_EXPOSED) [-].
+
+    Returns
+    -------
+    int
+        Number of leaf-area values that are negative or not finite (their rows are not
+        meaningful; the caller reports the first one) [-].
 
     Notes
     -----
     exp comes from the branch-free polynomial :func:`coveryield.physics.fused._exp_poly`
     (relative error about 1e-14), so the loop vectorises; the rare k·LAI beyond 16 is redone
-    with math.exp. Computed once per run, outside the day loop.
+    with math.exp. Computed once per run, outside the day loop, so the loop has no exp and no
+    division for the exposed share.
 
     References
     ----------
@@ -268,17 +290,27 @@ def cover_fraction_rows(lai, extinction, out):
     """
     n_rows, n_tiles = lai.shape
     outside = 0
+    invalid = 0
     for d in range(n_rows):
         for t in range(n_tiles):
-            x = -extinction[t] * lai[d, t]
+            leaf = lai[d, t]
+            invalid += not (leaf >= 0.0 and leaf < math.inf)
+            x = -extinction[t] * leaf
             outside += x < _POLY_EXP_MIN
-            out[d, t] = 1.0 - _exp_poly(max(x, _POLY_EXP_MIN))
-    if outside:
+            beer = 1.0 - _exp_poly(max(x, _POLY_EXP_MIN))
+            cover = land[t] * (1.0 if closed else beer)
+            out[C_CAPACITY, d, t] = capacity_per_lai[t] * leaf
+            out[C_COVER, d, t] = cover
+            out[C_INV_EXPOSED, d, t] = 1.0 / max(1.0 - cover, _MIN_EXPOSED)
+    if outside and not closed:
         for d in range(n_rows):
             for t in range(n_tiles):
                 x = -extinction[t] * lai[d, t]
                 if x < _POLY_EXP_MIN:
-                    out[d, t] = 1.0 - math.exp(x)
+                    cover = land[t] * (1.0 - math.exp(x))
+                    out[C_COVER, d, t] = cover
+                    out[C_INV_EXPOSED, d, t] = 1.0 / max(1.0 - cover, _MIN_EXPOSED)
+    return invalid
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -335,6 +367,7 @@ def surface_layer_evaporation(
     energy_mm,
     kc_max_et0_mm,
     exposed,
+    inv_exposed,
     tew_mm,
     inv_stage2_span,
     depletion_mm,
@@ -353,6 +386,8 @@ def surface_layer_evaporation(
         Kc,max·ETo, the most a wetted surface evaporates [mm d⁻¹].
     exposed : float
         Exposed and wetted share of the ground, few = 1 − c [-].
+    inv_exposed : float
+        1 / max(few, 1e-9) [-] (a closed canopy exposes no soil and evaporates none from it).
     tew_mm : float
         Total evaporable water of the surface layer, TEW [mm].
     inv_stage2_span : float
@@ -393,7 +428,7 @@ def surface_layer_evaporation(
     exposed_cap = exposed * kc_max_et0_mm  # few·Kc,max·ETo, eq. 71
     evaporation = min(min(kr * energy_mm, exposed_cap), min(exposed * left, root_zone_water_mm))
     evaporation = max(evaporation, 0.0)  # rounding can leave `left` a hair below 0
-    return evaporation, depletion + evaporation / max(exposed, _MIN_EXPOSED)  # FAO-56 eq. 77
+    return evaporation, depletion + evaporation * inv_exposed  # FAO-56 eq. 77
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -427,15 +462,21 @@ def curve_number_runoff(water_mm, retention_mm):
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def wetness_retention(retention_dry, retention_average, retention_wet, relative_wetness):
-    """SCS retention for the day, moved between AMC I, II and III by root-zone wetness.
+def store_retention(store_mm, half_taw_mm, low_mm, low_slope, high_mm, high_slope):
+    """SCS retention for the day, moved between AMC I, II and III by the root-zone store.
 
     Parameters
     ----------
-    retention_dry, retention_average, retention_wet : float
-        Retention S of the AMC I (dry), II and III (wet) curve numbers [mm].
-    relative_wetness : float
-        Root-zone store as a fraction of TAW at the start of the day, 0..1 [-].
+    store_mm : float
+        Root-zone store at the start of the day, 0..TAW [mm].
+    half_taw_mm : float
+        TAW / 2 [mm].
+    low_mm, low_slope : float
+        The dry half's line S = low + low_slope·store: S(AMC I) [mm] and
+        2·(S(AMC II) − S(AMC I)) / TAW [-].
+    high_mm, high_slope : float
+        The wet half's line: 2·S(AMC II) − S(AMC III) [mm] and 2·(S(AMC III) − S(AMC II)) / TAW
+        [-].
 
     Returns
     -------
@@ -444,14 +485,36 @@ def wetness_retention(retention_dry, retention_average, retention_wet, relative_
 
     Notes
     -----
-    Piecewise linear in wetness: S(AMC I) at wilting point (0), S(AMC II) at half of TAW,
-    S(AMC III) at field capacity (1). Tying the three classes to these wetness points, and
-    interpolating S rather than CN, is common practice, no source (NEH-4 classes AMC by the
-    5-day antecedent rain, which the daily store replaces).
+    Piecewise linear in wetness: S(AMC I) at wilting point (store 0), S(AMC II) at half of TAW,
+    S(AMC III) at field capacity (TAW); :func:`retention_lines` gives the two lines. Tying the
+    three classes to these wetness points, and interpolating S rather than CN, is common
+    practice, no source (NEH-4 classes AMC by the 5-day antecedent rain, which the daily store
+    replaces).
     """
-    low = retention_dry + (retention_average - retention_dry) * (2.0 * relative_wetness)
-    high = retention_average + (retention_wet - retention_average) * (2.0 * relative_wetness - 1.0)
-    return low if relative_wetness < 0.5 else high
+    low = low_mm + low_slope * store_mm
+    high = high_mm + high_slope * store_mm
+    return low if store_mm < half_taw_mm else high
+
+
+def retention_lines(retention_dry, retention_average, retention_wet, taw_mm):
+    """The two lines of :func:`store_retention` from the AMC I, II and III retentions.
+
+    Parameters
+    ----------
+    retention_dry, retention_average, retention_wet : ndarray
+        Retention S of the AMC I, II and III curve numbers [mm].
+    taw_mm : ndarray
+        Total available water, > 0 [mm].
+
+    Returns
+    -------
+    low, low_slope, high, high_slope : ndarray
+        S = low + low_slope·store below TAW/2, high + high_slope·store above [mm, -].
+    """
+    low_slope = 2.0 * (retention_average - retention_dry) / taw_mm
+    high_slope = 2.0 * (retention_wet - retention_average) / taw_mm
+    high = 2.0 * retention_average - retention_wet
+    return retention_dry, low_slope, high, high_slope
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -460,15 +523,16 @@ def tile_day(
     wet,
     dry,
     soil_pot,
-    lai,
+    capacity,
     cover,
-    capacity_per_lai,
+    inv_exposed,
     inv_rain_rate,
-    retention_dry,
-    retention_average,
-    retention_wet,
+    retention_low,
+    retention_low_slope,
+    retention_high,
+    retention_high_slope,
+    half_taw,
     taw,
-    inv_taw,
     inv_readily_span,
     tew,
     inv_stage2_span,
@@ -490,20 +554,19 @@ def tile_day(
         Dry-canopy potential transpiration, Kcb·ETo or its stand-in [mm d⁻¹].
     soil_pot : float
         Energy left for soil evaporation, (Kc,max − Kcb)·ETo [mm d⁻¹].
-    lai : float
-        Leaf area index of the day [m² m⁻²].
+    capacity : float
+        Canopy storage capacity of the day, S = capacity per LAI × LAI (Dickinson 1984) [mm].
     cover : float
         Canopy cover fraction of the day, c = 1 − exp(−k·LAI) (Beer's law), 0..1 [-].
-    capacity_per_lai : float
-        Canopy storage per unit LAI [mm].
+    inv_exposed : float
+        1 / max(1 − c, 1e-9) [-].
     inv_rain_rate : float
         1 / rainfall intensity while raining [h mm⁻¹].
-    retention_dry, retention_average, retention_wet : float
-        SCS retention S of the AMC I, II and III curve numbers [mm].
-    taw : float
-        Total available water of the root zone [mm], > 0.
-    inv_taw : float
-        1 / TAW [mm⁻¹].
+    retention_low, retention_low_slope, retention_high, retention_high_slope : float
+        The two lines of the SCS retention against the root-zone store
+        (:func:`retention_lines`) [mm, -].
+    half_taw, taw : float
+        Half of and the total available water of the root zone [mm].
     inv_readily_span : float
         1 / ((1 − p)·TAW) [mm⁻¹].
     tew : float
@@ -511,7 +574,9 @@ def tile_day(
     inv_stage2_span : float
         1 / (TEW − REW) [mm⁻¹].
     water : float
-        1.0 for an open-water tile, else 0.0 [-].
+        1.0 for an open-water tile, else 0.0 [-]. An open-water tile also has capacity, cover,
+        TAW, 1 / ((1 − p)·TAW) and TEW 0 (see ``water_balance._kernel_parameters``), so that its
+        land terms below are exactly 0.
     canopy_store, soil_store, surface_depletion : float
         Canopy store per unit ground area, root-zone store and surface-layer depletion at the
         start of the day [mm].
@@ -525,10 +590,10 @@ def tile_day(
 
     Notes
     -----
-    Order: canopy (:func:`sparse_canopy_day`, with S = capacity_per_lai·LAI and the day's
-    cover c); quickflow from throughfall (:func:`curve_number_runoff` with
-    :func:`wetness_retention`); root zone: transpiration, then soil evaporation from the surface
-    layer (:func:`surface_layer_evaporation`); drainage of the water above TAW.
+    Order: canopy (:func:`sparse_canopy_day` with the day's S and cover c); quickflow from
+    throughfall (:func:`curve_number_runoff` with :func:`store_retention`); root zone:
+    transpiration, then soil evaporation from the surface layer
+    (:func:`surface_layer_evaporation`); drainage of the water above TAW.
 
     Transpiration = Ks·E_dry·(1 − E_int/(c·E_wet)), with FAO-56 eq. 84
     Ks = (TAW − Dr)/((1 − p)·TAW) capped at 1, Dr taken at the start of the day. The factor
@@ -544,6 +609,9 @@ def tile_day(
     An open-water tile has no canopy and no soil: open water = E_wet and quickflow = P − E_wet
     (negative when evaporation exceeds rain).
 
+    The arithmetic is branch-free (the two ``if`` expressions compile to selects), so the loop
+    over tiles vectorises.
+
     References
     ----------
     Allen, R. G., Pereira, L. S., Raes, D. & Smith, M. (1998). Crop evapotranspiration. FAO
@@ -551,13 +619,17 @@ def tile_day(
     Gash, J. H. C., Lloyd, C. R. & Lachaud, G. (1995). J. Hydrol., 170, 79-86.
     Burgy, R. H. & Pomeroy, C. R. (1958). Interception losses in grassy vegetation. Trans. AGU,
     39(6), 1095-1100.
+    Dickinson, R. E. (1984). Modeling evapotranspiration for three-dimensional global climate
+    models. Geophys. Monogr. 29, 58-72.
     """
     interception, throughfall, canopy_end = sparse_canopy_day(
-        rain, wet, cover, capacity_per_lai * lai, inv_rain_rate, canopy_store
+        rain, wet, cover, capacity, inv_rain_rate, canopy_store
     )
 
-    wetness = soil_store * inv_taw
-    retention = wetness_retention(retention_dry, retention_average, retention_wet, wetness)
+    retention = store_retention(
+        soil_store, half_taw, retention_low, retention_low_slope, retention_high,
+        retention_high_slope,
+    )
     quickflow = curve_number_runoff(throughfall, retention)
     infiltration = throughfall - quickflow
     available = soil_store + infiltration
@@ -571,6 +643,7 @@ def tile_day(
         max(kc_max_et0 - interception - transpiration, 0.0),  # FAO-56 eq. 71, energy left
         kc_max_et0,
         1.0 - cover,
+        inv_exposed,
         tew,
         inv_stage2_span,
         surface_depletion,
@@ -580,32 +653,21 @@ def tile_day(
     soil_end = min(after_et, taw)
     drainage = after_et - soil_end  # FAO-56 eq. 88: DP = (P − RO) − ET − Dr,i−1 ≥ 0
 
-    if water > 0.5:
-        return 0.0, 0.0, 0.0, 0.0, wet, rain - wet, 0.0, 0.0, 0.0, 0.0
+    # open water: with no canopy and no soil every land term above is 0 except the throughfall
+    # (the rain), its quickflow and a rounding remainder in drainage, which are replaced here
+    is_water = water > 0.5
     return (
         interception,
-        throughfall,
+        0.0 if is_water else throughfall,
         transpiration,
         soil_evap,
-        0.0,
-        quickflow,
-        drainage,
+        wet if is_water else 0.0,
+        rain - wet if is_water else quickflow,
+        0.0 if is_water else drainage,
         canopy_end,
         soil_end,
         depletion_end,
     )
-
-
-@njit(cache=True, error_model="numpy", inline="always")
-def _all_valid(a, b, c, d, e):
-    """Tell whether five values are all finite and non-negative.
-
-    ``min(a, …, e) + (a + … + e)·0`` is ≥ 0 exactly when none is negative and none is
-    NaN or infinite (0·inf and 0·NaN are NaN, and NaN ≥ 0 is false); it costs a few vector
-    operations instead of two comparisons per value. (Finite values above 3e307 whose sum
-    overflows would also be flagged; the caller finds no bad value to name in that case.)
-    """
-    return min(min(min(a, b), min(c, d)), e) + (a + b + c + d + e) * 0.0 >= 0.0
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -634,7 +696,7 @@ def _close_year(y, par, st, annual, n_tiles):
             annual[A_STORAGE_CHANGE, y, t] += store
             annual[A_RAIN, y, t] += st[s0 + S_RAIN * BLOCK + j]
             wet_surface = st[s0 + S_WET_SURFACE * BLOCK + j]
-            if par[p0 + P_CAPACITY * BLOCK + j] < 0.0:
+            if par[p0 + P_WATER * BLOCK + j] > 0.5:
                 annual[A_OPEN_WATER, y, t] += wet_surface
             else:
                 annual[A_INTERCEPTION, y, t] += wet_surface
@@ -650,9 +712,8 @@ def _run(
     wet,
     dry,
     soil_pot,
-    lai,
-    cover,
-    lai_step,
+    canopy,
+    day_step,
     year_index,
     par,
     st,
@@ -668,15 +729,18 @@ def _run(
 
     The daily outputs are written straight from the vectorised tile loop: staging them in state
     rows and copying them out afterwards cost a second pass over the tiles every day.
-    ``lai[d * lai_step, t]`` and ``cover[d * lai_step, t]`` are the leaf area and cover fraction
-    of day ``d``: ``lai_step`` 0 reads one row of constant values (it stays in cache), 1 reads a
-    row per day.
+    ``canopy[:, d * day_step, t]`` holds the capacity, cover and 1 / exposed share of day ``d``:
+    ``day_step`` 0 reads one row of constant values (it stays in cache), 1 reads a row per day.
+
+    The input check costs no branch: a non-finite forcing value turns the year's rain sum into
+    NaN or inf (``x·0`` is NaN for an infinite or NaN ``x``; ``r + 0·(…)`` is ``r`` otherwise),
+    and the lowest value seen is kept in a state row, so a negative one shows there.
     """
     n_days, n_tiles = rain.shape
     n_blocks = (n_tiles + BLOCK - 1) // BLOCK
     for d in range(n_days):
         y = year_index[d]
-        dl = d * lai_step
+        dc = d * day_step
         if d == 0 or year_index[d - 1] != y:
             _open_year(y, st, annual, n_tiles)
         for b in range(n_blocks):
@@ -688,27 +752,25 @@ def _run(
                 w = wet[d, t0 + j]
                 dr = dry[d, t0 + j]
                 sp = soil_pot[d, t0 + j]
-                la = lai[dl, t0 + j]
-                ok = _all_valid(r, w, dr, sp, la)
-                capacity = par[p0 + P_CAPACITY * BLOCK + j]
                 ic, tf, tr, es, ow, qf, dn, c_end, s_end, e_end = tile_day(
                     r,
                     w,
                     dr,
                     sp,
-                    la,
-                    cover[dl, t0 + j],
-                    capacity,
+                    canopy[C_CAPACITY, dc, t0 + j],
+                    canopy[C_COVER, dc, t0 + j],
+                    canopy[C_INV_EXPOSED, dc, t0 + j],
                     par[p0 + P_INV_RAIN_RATE * BLOCK + j],
-                    par[p0 + P_RETENTION_DRY * BLOCK + j],
-                    par[p0 + P_RETENTION_AVERAGE * BLOCK + j],
-                    par[p0 + P_RETENTION_WET * BLOCK + j],
+                    par[p0 + P_RETENTION_LOW * BLOCK + j],
+                    par[p0 + P_RETENTION_LOW_SLOPE * BLOCK + j],
+                    par[p0 + P_RETENTION_HIGH * BLOCK + j],
+                    par[p0 + P_RETENTION_HIGH_SLOPE * BLOCK + j],
+                    par[p0 + P_HALF_TAW * BLOCK + j],
                     par[p0 + P_TAW * BLOCK + j],
-                    par[p0 + P_INV_TAW * BLOCK + j],
                     par[p0 + P_INV_READILY_SPAN * BLOCK + j],
                     par[p0 + P_TEW * BLOCK + j],
                     par[p0 + P_INV_STAGE2_SPAN * BLOCK + j],
-                    1.0 if capacity < 0.0 else 0.0,
+                    par[p0 + P_WATER * BLOCK + j],
                     st[s0 + S_CANOPY * BLOCK + j],
                     st[s0 + S_SOIL * BLOCK + j],
                     st[s0 + S_SURFACE * BLOCK + j],
@@ -716,7 +778,11 @@ def _run(
                 st[s0 + S_CANOPY * BLOCK + j] = c_end
                 st[s0 + S_SOIL * BLOCK + j] = s_end
                 st[s0 + S_SURFACE * BLOCK + j] = e_end
-                st[s0 + S_RAIN * BLOCK + j] += r if ok else np.nan
+                lowest = min(min(r, w), min(dr, sp))
+                st[s0 + S_LOWEST_INPUT * BLOCK + j] = min(
+                    lowest, st[s0 + S_LOWEST_INPUT * BLOCK + j]
+                )
+                st[s0 + S_RAIN * BLOCK + j] += r + (w + dr + sp) * 0.0  # NaN/inf if any is
                 st[s0 + S_WET_SURFACE * BLOCK + j] += ic + ow  # one of the two is 0.0
                 st[s0 + S_TRANSPIRATION * BLOCK + j] += tr
                 st[s0 + S_SOIL_EVAP * BLOCK + j] += es
@@ -743,21 +809,22 @@ def _run(
 
 @njit(cache=True, error_model="numpy")
 def run_tiles(
-    rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield
+    rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, daily_yield
 ):
     """Run the daily water balance of many tiles and accumulate annual sums.
 
     Parameters
     ----------
-    rain, wet, dry, soil_pot : ndarray, shape (n_days, n_tiles), C-contiguous float64
+    rain, wet, dry, soil_pot : ndarray, shape (n_days, n_tiles), C-contiguous float64 or float32
         Gross rain, wet-canopy evaporation (per covered area), dry-canopy transpiration and the
-        energy left for soil evaporation [mm d⁻¹].
-    lai, cover : ndarray, shape (n_days, n_tiles) or (1, n_tiles), C-contiguous float64
-        Leaf area index [m² m⁻²] and canopy cover fraction 1 − exp(−k·LAI) [-] per day, or one
-        constant row each (the caller computes the cover: an exp per tile-day would cost the
-        loop more than reading a row).
-    lai_step : int
-        1 when ``lai`` and ``cover`` have a row per day, 0 for one constant row [-].
+        energy left for soil evaporation [mm d⁻¹]. All four of one dtype; float32 values are
+        widened to float64 as they are read, and all arithmetic is float64.
+    canopy : ndarray, shape (N_CANOPY, n_days or 1, n_tiles), C-contiguous float64
+        Rows ``C_*`` from :func:`canopy_rows`: canopy capacity [mm], cover fraction [-] and
+        1 / exposed share [-] per day, or one constant row each (computed before the loop: an
+        exp and a division per tile-day would cost the loop more than reading a row).
+    day_step : int
+        1 when ``canopy`` has a row per day, 0 for one constant row [-].
     year_index : ndarray of int64, shape (n_days,)
         Year number of each day, non-decreasing from 0 in steps of 0 or 1 [-].
     par : ndarray, shape (n_blocks·N_PAR·BLOCK,)
@@ -767,7 +834,8 @@ def run_tiles(
         the last year out [mm].
     annual : ndarray, shape (8, n_years, n_tiles)
         Zero on entry; annual sums out, rows in the order of :data:`ANNUAL_NAMES` [mm]. The
-        rain of a year in which a tile had a negative or non-finite input is NaN.
+        rain of a year in which a tile had a non-finite input is NaN or infinite; a negative
+        input shows as a negative ``S_LOWEST_INPUT`` state row.
     daily_yield : ndarray, shape (n_days, n_tiles), C-contiguous float64 or float32
         Quickflow + drainage of each day out, rounded to its dtype [mm d⁻¹].
 
@@ -775,12 +843,12 @@ def run_tiles(
     -----
     The daily physics is :func:`tile_day`.
     """
-    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield,
+    _run(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, daily_yield,
          daily_yield, annual, True, False, False)
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles_routed(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual,
+def run_tiles_routed(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual,
                      daily_yield, daily_drainage):
     """Run as :func:`run_tiles` does, also keeping each day's drainage (for two-store routing).
 
@@ -789,25 +857,25 @@ def run_tiles_routed(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index,
     daily_drainage : ndarray, shape (n_days, n_tiles), same dtype as ``daily_yield``
         Drainage below the root zone of each day out [mm d⁻¹].
     """
-    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield,
+    _run(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, daily_yield,
          daily_drainage, annual, True, True, False)
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles_annual(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual):
+def run_tiles_annual(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual):
     """Run as :func:`run_tiles` does, keeping the annual sums only (no daily yield).
 
     Parameters
     ----------
-    rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual
+    rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual
         As for :func:`run_tiles`.
     """
-    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, annual, annual,
+    _run(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, annual, annual,
          annual, False, False, False)
 
 
 @njit(cache=True, error_model="numpy")
-def run_tiles_daily(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual,
+def run_tiles_daily(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual,
                     daily_yield, daily_drainage, daily):
     """Run as :func:`run_tiles_routed` does, also keeping every daily flux and store.
 
@@ -821,5 +889,5 @@ def run_tiles_daily(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, 
     -----
     Separate kernels rather than run-time flags keep the fast kernel free of the extra stores.
     """
-    _run(rain, wet, dry, soil_pot, lai, cover, lai_step, year_index, par, st, annual, daily_yield,
+    _run(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, daily_yield,
          daily_drainage, daily, True, True, True)

@@ -302,26 +302,35 @@ def retention_mm(curve_number):
 
 
 def _kernel_parameters(params: TileParameters) -> np.ndarray:
-    """Derive the per-tile kernel parameters, in the kernel's blocked layout."""
+    """Derive the per-tile kernel parameters, in the kernel's blocked layout.
+
+    An open-water tile gets TAW, 1 / ((1 − p)·TAW), TEW and the retention 0 (CN 100), so that
+    the kernel's land terms are exactly 0 on it with no branch (see ``kernels.tile_day``).
+    """
     water = params.is_water
+    land = ~water
     taw = np.where(water, 1.0, params.root_zone_capacity_mm)
     cn = np.where(water, 100.0, params.curve_number)
-    lai = params.reference_lai()
-    with np.errstate(divide="ignore", invalid="ignore"):
-        per_lai = np.where(lai > 0, params.canopy_capacity_mm / lai, 0.0)
+    low, low_slope, high, high_slope = kernels.retention_lines(
+        retention_mm(dry_curve_number(cn)), retention_mm(cn), retention_mm(wet_curve_number(cn)),
+        taw,
+    )
     rows = [None] * kernels.N_PAR
-    rows[kernels.P_CAPACITY] = np.where(water, kernels.WATER_CAPACITY, per_lai)
     rows[kernels.P_INV_RAIN_RATE] = 1.0 / params.rain_rate_mm_per_h
-    rows[kernels.P_RETENTION_DRY] = retention_mm(dry_curve_number(cn))
-    rows[kernels.P_RETENTION_AVERAGE] = retention_mm(cn)
-    rows[kernels.P_RETENTION_WET] = retention_mm(wet_curve_number(cn))
-    rows[kernels.P_TAW] = taw
-    rows[kernels.P_INV_TAW] = 1.0 / taw
-    rows[kernels.P_INV_READILY_SPAN] = 1.0 / ((1.0 - params.depletion_fraction) * taw)
-    rows[kernels.P_TEW] = params.total_evaporable_mm
+    rows[kernels.P_RETENTION_LOW] = low
+    rows[kernels.P_RETENTION_LOW_SLOPE] = low_slope
+    rows[kernels.P_RETENTION_HIGH] = high
+    rows[kernels.P_RETENTION_HIGH_SLOPE] = high_slope
+    rows[kernels.P_HALF_TAW] = np.where(land, 0.5 * taw, 0.0)
+    rows[kernels.P_TAW] = np.where(land, taw, 0.0)
+    rows[kernels.P_INV_READILY_SPAN] = np.where(
+        land, 1.0 / ((1.0 - params.depletion_fraction) * taw), 0.0
+    )
+    rows[kernels.P_TEW] = np.where(land, params.total_evaporable_mm, 0.0)
     rows[kernels.P_INV_STAGE2_SPAN] = 1.0 / (
         params.total_evaporable_mm - params.readily_evaporable_mm
     )
+    rows[kernels.P_WATER] = water.astype(np.float64)
     return kernels.pack_blocks(rows)
 
 
@@ -358,11 +367,17 @@ def _check_year_index(year_index, n_days) -> np.ndarray:
 
 
 def _check_forcing(arrays, n_tiles):
-    """Return the forcing as C-contiguous float64 arrays of one shape (n_days, n_tiles)."""
+    """Return the forcing as C-contiguous arrays of one shape (n_days, n_tiles) and one dtype.
+
+    Four float32 arrays stay float32 (the kernel widens each value as it reads it, and half the
+    bytes stream through memory); anything else becomes float64.
+    """
     shape = np.shape(arrays[0])
+    single = all(getattr(value, "dtype", None) == np.float32 for value in arrays)
+    dtype = np.float32 if single else np.float64
     out = []
     for name, value in zip(_FORCING_NAMES, arrays, strict=False):
-        array = np.ascontiguousarray(value, dtype=np.float64)
+        array = np.ascontiguousarray(value, dtype=dtype)
         if array.ndim != 2 or array.shape != shape or array.shape[1] != n_tiles:
             raise ValueError(
                 f"{name}: shape {array.shape}, expected (n_days, {n_tiles}) like rain_mm "
@@ -375,7 +390,7 @@ def _check_forcing(arrays, n_tiles):
 
 
 def _leaf_area(lai, params: TileParameters, shape):
-    """The kernel's leaf-area rows and their step: one constant row (step 0) or one per day."""
+    """The leaf-area rows: one constant row (step 0) or one per day (step 1) [m² m⁻²]."""
     if lai is None:
         return np.ascontiguousarray(params.reference_lai().reshape(1, -1)), 0
     array = np.ascontiguousarray(lai, dtype=np.float64)
@@ -387,18 +402,31 @@ def _leaf_area(lai, params: TileParameters, shape):
     return array, 1
 
 
-def _cover_rows(leaf_area, params: TileParameters) -> np.ndarray:
-    """Canopy cover fraction for the kernel's leaf-area rows: 1 − exp(−k·LAI), 1 if closed."""
-    if params.leaf_area_index is None:
-        return np.ones_like(leaf_area)
-    cover = np.empty_like(leaf_area)
-    kernels.cover_fraction_rows(leaf_area, params.extinction_coefficient, cover)
-    return cover
+def _canopy_rows(leaf_area, params: TileParameters) -> np.ndarray:
+    """Capacity, cover and 1 / exposed share for the leaf-area rows (``kernels.canopy_rows``).
+
+    Raises
+    ------
+    ValueError
+        Naming the first negative or non-finite leaf area (day, tile, value).
+    """
+    lai = params.reference_lai()
+    with np.errstate(divide="ignore", invalid="ignore"):
+        per_lai = np.where(lai > 0, params.canopy_capacity_mm / lai, 0.0)
+    land = (~params.is_water).astype(np.float64)
+    out = np.empty((kernels.N_CANOPY, *leaf_area.shape))
+    closed = params.leaf_area_index is None
+    invalid = kernels.canopy_rows(
+        leaf_area, per_lai * land, params.extinction_coefficient, closed, land, out
+    )
+    if invalid:
+        _raise_first_bad_value({"lai": leaf_area}, np.arange(leaf_area.shape[1]))
+    return out
 
 
-def _raise_first_bad_value(arrays, bad_tiles):
-    """Raise ValueError naming the first negative or non-finite forcing value."""
-    for name, array in zip(_FORCING_NAMES, arrays, strict=False):
+def _raise_first_bad_value(named_arrays, bad_tiles):
+    """Raise ValueError naming the first negative or non-finite value in the given tiles."""
+    for name, array in named_arrays.items():
         columns = array[:, bad_tiles]
         bad = ~((columns >= 0) & np.isfinite(columns))
         if bad.any():
@@ -578,8 +606,8 @@ def simulate_tiles(
         raise ValueError("out: given with keep_daily_yield=False (expected None)")
     if keep_daily or keep_daily_drainage:
         drainage = np.empty((n_days, n_tiles), dtype=daily_yield.dtype)
-    cover = _cover_rows(leaf_area, params)
-    inputs = (*forcing, leaf_area, cover, lai_step, years, par, state, annual)
+    canopy = _canopy_rows(leaf_area, params)
+    inputs = (*forcing, canopy, lai_step, years, par, state, annual)
     if keep_daily:
         daily = np.empty((kernels.N_DAILY, n_days, n_tiles))
         kernels.run_tiles_daily(*inputs, daily_yield, drainage, daily)
@@ -590,10 +618,13 @@ def simulate_tiles(
     else:
         kernels.run_tiles_annual(*inputs)
 
-    # the kernel marks a year with an invalid input day by a NaN rain sum
-    bad_tiles = np.flatnonzero(np.isnan(annual[kernels.A_RAIN]).any(axis=0))
-    if bad_tiles.size:
-        _raise_first_bad_value((*forcing, np.broadcast_to(leaf_area, forcing[0].shape)), bad_tiles)
+    # the kernel marks a non-finite input by a NaN or inf rain sum, a negative one by its
+    # lowest-input state row
+    lowest = kernels.unpack_row(state, kernels.N_STATE, kernels.S_LOWEST_INPUT, n_tiles)
+    bad = ~np.isfinite(annual[kernels.A_RAIN]).all(axis=0) | ~(lowest >= 0.0)
+    if bad.any():
+        named = dict(zip(_FORCING_NAMES, forcing, strict=False))
+        _raise_first_bad_value(named, np.flatnonzero(bad))
 
     result = TileAnnual(**dict(zip(kernels.ANNUAL_NAMES, annual, strict=True)))
     daily_dict = None if daily is None else dict(zip(kernels.DAILY_NAMES, daily, strict=True))
