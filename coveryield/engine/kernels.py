@@ -52,22 +52,25 @@ from coveryield.physics.fused import _exp_poly
 
 
 #: Tiles per block of the blocked parameter and state arrays.
-BLOCK = 32
+BLOCK = 256
 
 # Rows of the blocked parameter array. Everything that is constant per tile is derived once
 # here, so the day loop spends no operation on it (see the Speed section).
-P_INV_RAIN_RATE = 0  # 1 / rainfall intensity [h mm⁻¹]
-P_RETENTION_LOW = 1  # SCS retention on the dry half, S = low + low_slope·store: S(AMC I) [mm]
+P_INV_RAIN_DAY = 0  # 1 / (24 h × rainfall intensity): the storm's share of the day per mm [mm⁻¹]
+P_RETENTION_LOW = 1  # SCS retention on the dry side, S = low + low_slope·store [mm]
 P_RETENTION_LOW_SLOPE = 2  # 2·(S(AMC II) − S(AMC I)) / TAW [-]
-P_RETENTION_HIGH = 3  # on the wet half, S = high + high_slope·store: 2·S(II) − S(III) [mm]
+P_RETENTION_HIGH = 3  # on the wet side, S = high + high_slope·store: 2·S(II) − S(III) [mm]
 P_RETENTION_HIGH_SLOPE = 4  # 2·(S(AMC III) − S(AMC II)) / TAW [-]
-P_HALF_TAW = 5  # TAW / 2, where the wet half starts [mm]
-P_TAW = 6  # total available water [mm]; 0 on an open-water tile
-P_INV_READILY_SPAN = 7  # 1 / ((1 − p)·TAW) [mm⁻¹]; 0 on an open-water tile
-P_TEW = 8  # total evaporable water of the surface layer [mm]; 0 on an open-water tile
-P_INV_STAGE2_SPAN = 9  # 1 / (TEW − REW) [mm⁻¹]
-P_WATER = 10  # 1.0 on an open-water tile, else 0.0 [-]
-N_PAR = 11
+P_TAW = 5  # total available water [mm]; 0 on an open-water tile
+P_INV_READILY_SPAN = 6  # 1 / ((1 − p)·TAW) [mm⁻¹]; 0 on an open-water tile
+P_TEW = 7  # total evaporable water of the surface layer [mm]; 0 on an open-water tile
+P_INV_STAGE2_SPAN = 8  # 1 / (TEW − REW) [mm⁻¹]
+P_WATER = 9  # 1.0 on an open-water tile, else 0.0 [-]
+N_PAR = 10
+
+#: Retention of an open-water tile [mm]: no quickflow, so its rain reaches the (empty, zero-
+#: capacity) root zone and leaves as drainage, exactly; the day loop books it as open water.
+WATER_RETENTION_MM = 1e300
 
 # Rows of the canopy array ``canopy[row, day, tile]`` (or ``canopy[row, 0, tile]`` when the leaf
 # area does not change): what the day's leaf area sets, computed before the day loop.
@@ -126,7 +129,6 @@ DAILY_NAMES = (
 )
 N_DAILY = 10
 
-_HOURS_PER_DAY = 24.0
 _PER_HOUR = 1.0 / 24.0
 _TINY = 1e-300
 #: Smallest exposed share used as a divisor (a closed canopy exposes none, and then evaporates
@@ -232,18 +234,25 @@ def canopy_day(rain_mm, wet_mm, capacity_mm, inv_rain_rate_h_per_mm, store_mm):
     Rutter, A. J., Kershaw, K. A., Robins, P. C. & Morton, A. J. (1971). A predictive model of
     rainfall interception in forests, 1. Agric. Meteorol., 9, 367–384.
     """
-    hours = min(_HOURS_PER_DAY, rain_mm * inv_rain_rate_h_per_mm)  # D = min(24, P/R)
-    return _canopy_storm(rain_mm, hours, wet_mm * _PER_HOUR, capacity_mm, store_mm)
+    share = min(1.0, rain_mm * (inv_rain_rate_h_per_mm * _PER_HOUR))  # D/24 = min(1, P/(24 R))
+    return _canopy_storm(rain_mm, share, wet_mm, capacity_mm, store_mm)
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _canopy_storm(rain_mm, hours, rate_mm_per_h, capacity_mm, store_mm):
-    """The closed form of :func:`canopy_day` for a storm of ``hours`` and a loss ``rate``."""
-    unclipped = store_mm + rain_mm - rate_mm_per_h * hours  # x = S0 + P − e·D
-    evap_storm = min(rate_mm_per_h * hours, store_mm + rain_mm)
+def _canopy_storm(rain_mm, storm_share, loss_mm, capacity_mm, store_mm):
+    """The closed form of :func:`canopy_day` for a storm lasting ``storm_share`` of the day.
+
+    ``loss_mm`` is the whole day's wet-canopy loss (24 e); the storm loses ``storm_share`` of
+    it and the dry spell after it the rest, e·(24 − D) = loss − e·D, which is ≥ 0 exactly as
+    computed (``loss·share ≤ loss`` for share ≤ 1 under rounding).
+    """
+    loss_storm = loss_mm * storm_share  # e·D
+    wetted = store_mm + rain_mm
+    unclipped = wetted - loss_storm  # x = S0 + P − e·D
+    evap_storm = min(loss_storm, wetted)
     throughfall = max(unclipped - capacity_mm, 0.0)
     store_after_rain = min(max(unclipped, 0.0), capacity_mm)
-    evap_after = min(store_after_rain, rate_mm_per_h * (_HOURS_PER_DAY - hours))
+    evap_after = min(store_after_rain, loss_mm - loss_storm)  # e·(24 − D)
     return evap_storm + evap_after, throughfall, store_after_rain - evap_after
 
 
@@ -353,10 +362,20 @@ def sparse_canopy_day(rain_mm, wet_mm, cover, capacity_mm, inv_rain_rate_h_per_m
     Gash, J. H. C., Lloyd, C. R. & Lachaud, G. (1995). Estimating sparse forest rainfall
     interception with an analytical model. J. Hydrol., 170, 79-86.
     """
-    hours = min(_HOURS_PER_DAY, rain_mm * inv_rain_rate_h_per_mm)  # D = min(24, P/R)
+    share = min(1.0, rain_mm * (inv_rain_rate_h_per_mm * _PER_HOUR))  # D/24 = min(1, P/(24 R))
+    return sparse_canopy_storm(rain_mm, wet_mm, cover, capacity_mm, share, store_mm)
+
+
+@njit(cache=True, error_model="numpy", inline="always")
+def sparse_canopy_storm(rain_mm, wet_mm, cover, capacity_mm, storm_share, store_mm):
+    """:func:`sparse_canopy_day` for a storm lasting ``storm_share`` = D/24 of the day [-].
+
+    The day loop calls this form with D/24 = min(1, P·(1/(24 R))), 1/(24 R) being a per-tile
+    constant; same parameters and returns as :func:`sparse_canopy_day` otherwise.
+    """
     on_canopy = cover * rain_mm
     loss, drip, store_end = _canopy_storm(
-        on_canopy, hours, cover * wet_mm * _PER_HOUR, capacity_mm, store_mm
+        on_canopy, storm_share, cover * wet_mm, capacity_mm, store_mm
     )
     return loss, rain_mm - on_canopy + drip, store_end
 
@@ -440,7 +459,7 @@ def curve_number_runoff(water_mm, retention_mm):
     water_mm : float
         Water reaching the ground (throughfall) [mm d⁻¹].
     retention_mm : float
-        Potential maximum retention S = 25400/CN − 254 [mm], ≥ 0.
+        Potential maximum retention S = 25400/CN − 254 [mm], > 0 (CN 100 as S = 1e-300 mm).
 
     Returns
     -------
@@ -457,25 +476,23 @@ def curve_number_runoff(water_mm, retention_mm):
     55, eqs. 2-1 to 2-4; National Engineering Handbook, Section 4, Hydrology, Ch. 10.
     """
     excess = max(water_mm - 0.2 * retention_mm, 0.0)  # P − Ia, Ia = 0.2 S (TR-55 eq. 2-2)
-    runoff = excess * excess / max(excess + retention_mm, _TINY)  # TR-55 eq. 2-1
-    return min(runoff, water_mm)  # guards rounding when S = 0
+    runoff = excess * excess / (excess + retention_mm)  # TR-55 eq. 2-1
+    return min(runoff, water_mm)  # guards rounding when S is tiny
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def store_retention(store_mm, half_taw_mm, low_mm, low_slope, high_mm, high_slope):
+def store_retention(store_mm, low_mm, low_slope, high_mm, high_slope):
     """SCS retention for the day, moved between AMC I, II and III by the root-zone store.
 
     Parameters
     ----------
     store_mm : float
         Root-zone store at the start of the day, 0..TAW [mm].
-    half_taw_mm : float
-        TAW / 2 [mm].
     low_mm, low_slope : float
-        The dry half's line S = low + low_slope·store: S(AMC I) [mm] and
+        The dry side's line S = low + low_slope·store: S(AMC I) [mm] and
         2·(S(AMC II) − S(AMC I)) / TAW [-].
     high_mm, high_slope : float
-        The wet half's line: 2·S(AMC II) − S(AMC III) [mm] and 2·(S(AMC III) − S(AMC II)) / TAW
+        The wet side's line: 2·S(AMC II) − S(AMC III) [mm] and 2·(S(AMC III) − S(AMC II)) / TAW
         [-].
 
     Returns
@@ -489,11 +506,11 @@ def store_retention(store_mm, half_taw_mm, low_mm, low_slope, high_mm, high_slop
     S(AMC III) at field capacity (TAW); :func:`retention_lines` gives the two lines. Tying the
     three classes to these wetness points, and interpolating S rather than CN, is common
     practice, no source (NEH-4 classes AMC by the 5-day antecedent rain, which the daily store
-    replaces).
+    replaces). The two lines meet at TAW/2 and the curve is convex (S(I) − S(II) ≥ S(II) −
+    S(III) for every CN with the NEH-4 conversions, checked in the tests), so it is the larger
+    of the two lines: one ``max`` instead of a comparison and a select.
     """
-    low = low_mm + low_slope * store_mm
-    high = high_mm + high_slope * store_mm
-    return low if store_mm < half_taw_mm else high
+    return max(low_mm + low_slope * store_mm, high_mm + high_slope * store_mm)
 
 
 def retention_lines(retention_dry, retention_average, retention_wet, taw_mm):
@@ -509,12 +526,14 @@ def retention_lines(retention_dry, retention_average, retention_wet, taw_mm):
     Returns
     -------
     low, low_slope, high, high_slope : ndarray
-        S = low + low_slope·store below TAW/2, high + high_slope·store above [mm, -].
+        S = max(low + low_slope·store, high + high_slope·store) [mm, -]. 1e-300 mm is added to
+        both intercepts so that S > 0 even at CN 100 (the runoff's divisor stays positive; no
+        other value changes).
     """
     low_slope = 2.0 * (retention_average - retention_dry) / taw_mm
     high_slope = 2.0 * (retention_wet - retention_average) / taw_mm
     high = 2.0 * retention_average - retention_wet
-    return retention_dry, low_slope, high, high_slope
+    return retention_dry + _TINY, low_slope, high + _TINY, high_slope
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -526,12 +545,11 @@ def tile_day(
     capacity,
     cover,
     inv_exposed,
-    inv_rain_rate,
+    inv_rain_day,
     retention_low,
     retention_low_slope,
     retention_high,
     retention_high_slope,
-    half_taw,
     taw,
     inv_readily_span,
     tew,
@@ -560,13 +578,14 @@ def tile_day(
         Canopy cover fraction of the day, c = 1 − exp(−k·LAI) (Beer's law), 0..1 [-].
     inv_exposed : float
         1 / max(1 − c, 1e-9) [-].
-    inv_rain_rate : float
-        1 / rainfall intensity while raining [h mm⁻¹].
+    inv_rain_day : float
+        1 / (24 h × rainfall intensity while raining): the storm lasts min(1, P·this) of the
+        day [mm⁻¹].
     retention_low, retention_low_slope, retention_high, retention_high_slope : float
         The two lines of the SCS retention against the root-zone store
         (:func:`retention_lines`) [mm, -].
-    half_taw, taw : float
-        Half of and the total available water of the root zone [mm].
+    taw : float
+        Total available water of the root zone [mm].
     inv_readily_span : float
         1 / ((1 − p)·TAW) [mm⁻¹].
     tew : float
@@ -575,8 +594,9 @@ def tile_day(
         1 / (TEW − REW) [mm⁻¹].
     water : float
         1.0 for an open-water tile, else 0.0 [-]. An open-water tile also has capacity, cover,
-        TAW, 1 / ((1 − p)·TAW) and TEW 0 (see ``water_balance._kernel_parameters``), so that its
-        land terms below are exactly 0.
+        TAW, 1 / ((1 − p)·TAW) and TEW 0 and the retention :data:`WATER_RETENTION_MM` (see
+        ``water_balance._kernel_parameters``), so that :func:`land_day` gives it no flux but
+        drainage = rain, exactly.
     canopy_store, soil_store, surface_depletion : float
         Canopy store per unit ground area, root-zone store and surface-layer depletion at the
         start of the day [mm].
@@ -586,11 +606,66 @@ def tile_day(
     tuple of float
         interception, throughfall, transpiration, soil_evap, open_water, quickflow, drainage
         [mm d⁻¹], then the canopy store, soil store and surface-layer depletion at the end of
-        the day [mm].
+        the day [mm]. An open-water tile has open water = E_wet and quickflow = P − E_wet
+        (negative when evaporation exceeds rain), every other term 0.
 
     Notes
     -----
-    Order: canopy (:func:`sparse_canopy_day` with the day's S and cover c); quickflow from
+    The land physics is :func:`land_day`; this wraps it with the open-water booking. The day
+    loop books open water itself, from running sums (see ``_run``), and gets the same values.
+    """
+    ic, tf, tr, es, qf, dn, c_end, s_end, e_end = land_day(
+        rain, wet, dry, soil_pot, capacity, cover, inv_exposed, inv_rain_day, retention_low,
+        retention_low_slope, retention_high, retention_high_slope, taw, inv_readily_span, tew,
+        inv_stage2_span, canopy_store, soil_store, surface_depletion,
+    )
+    if water > 0.5:
+        return ic, 0.0, tr, es, wet, dn - wet, 0.0, c_end, s_end, e_end
+    return ic, tf, tr, es, 0.0, qf, dn, c_end, s_end, e_end
+
+
+@njit(cache=True, error_model="numpy", inline="always")
+def land_day(
+    rain,
+    wet,
+    dry,
+    soil_pot,
+    capacity,
+    cover,
+    inv_exposed,
+    inv_rain_day,
+    retention_low,
+    retention_low_slope,
+    retention_high,
+    retention_high_slope,
+    taw,
+    inv_readily_span,
+    tew,
+    inv_stage2_span,
+    canopy_store,
+    soil_store,
+    surface_depletion,
+):
+    """Canopy, quickflow and root zone of one land tile over one day (see :func:`tile_day`).
+
+    Parameters
+    ----------
+    rain, wet, dry, soil_pot, capacity, cover, inv_exposed, inv_rain_day
+        As for :func:`tile_day`.
+    retention_low, retention_low_slope, retention_high, retention_high_slope, taw
+        As for :func:`tile_day`.
+    inv_readily_span, tew, inv_stage2_span, canopy_store, soil_store, surface_depletion
+        As for :func:`tile_day`.
+
+    Returns
+    -------
+    tuple of float
+        interception, throughfall, transpiration, soil_evap, quickflow, drainage [mm d⁻¹],
+        canopy store, soil store, surface-layer depletion at the end of the day [mm].
+
+    Notes
+    -----
+    Order: canopy (:func:`sparse_canopy_storm` with the day's S and cover c); quickflow from
     throughfall (:func:`curve_number_runoff` with :func:`store_retention`); root zone:
     transpiration, then soil evaporation from the surface layer
     (:func:`surface_layer_evaporation`); drainage of the water above TAW.
@@ -606,11 +681,7 @@ def tile_day(
     Both are limited to the water the store holds after infiltration. Drainage follows
     evaporation, as in FAO-56 eq. 88: DP = (P − RO) − ET − Dr,i−1 when positive.
 
-    An open-water tile has no canopy and no soil: open water = E_wet and quickflow = P − E_wet
-    (negative when evaporation exceeds rain).
-
-    The arithmetic is branch-free (the two ``if`` expressions compile to selects), so the loop
-    over tiles vectorises.
+    The arithmetic is branch-free (``min``/``max``), so the loop over tiles vectorises.
 
     References
     ----------
@@ -622,13 +693,13 @@ def tile_day(
     Dickinson, R. E. (1984). Modeling evapotranspiration for three-dimensional global climate
     models. Geophys. Monogr. 29, 58-72.
     """
-    interception, throughfall, canopy_end = sparse_canopy_day(
-        rain, wet, cover, capacity, inv_rain_rate, canopy_store
+    storm_share = min(1.0, rain * inv_rain_day)  # D/24 = min(1, P/(24 R))
+    interception, throughfall, canopy_end = sparse_canopy_storm(
+        rain, wet, cover, capacity, storm_share, canopy_store
     )
 
     retention = store_retention(
-        soil_store, half_taw, retention_low, retention_low_slope, retention_high,
-        retention_high_slope,
+        soil_store, retention_low, retention_low_slope, retention_high, retention_high_slope
     )
     quickflow = curve_number_runoff(throughfall, retention)
     infiltration = throughfall - quickflow
@@ -652,18 +723,13 @@ def tile_day(
     after_et = available - transpiration - soil_evap
     soil_end = min(after_et, taw)
     drainage = after_et - soil_end  # FAO-56 eq. 88: DP = (P − RO) − ET − Dr,i−1 ≥ 0
-
-    # open water: with no canopy and no soil every land term above is 0 except the throughfall
-    # (the rain), its quickflow and a rounding remainder in drainage, which are replaced here
-    is_water = water > 0.5
     return (
         interception,
-        0.0 if is_water else throughfall,
+        throughfall,
         transpiration,
         soil_evap,
-        wet if is_water else 0.0,
-        rain - wet if is_water else quickflow,
-        0.0 if is_water else drainage,
+        quickflow,
+        drainage,
         canopy_end,
         soil_end,
         depletion_end,
@@ -696,14 +762,16 @@ def _close_year(y, par, st, annual, n_tiles):
             annual[A_STORAGE_CHANGE, y, t] += store
             annual[A_RAIN, y, t] += st[s0 + S_RAIN * BLOCK + j]
             wet_surface = st[s0 + S_WET_SURFACE * BLOCK + j]
-            if par[p0 + P_WATER * BLOCK + j] > 0.5:
-                annual[A_OPEN_WATER, y, t] += wet_surface
-            else:
-                annual[A_INTERCEPTION, y, t] += wet_surface
             annual[A_TRANSPIRATION, y, t] += st[s0 + S_TRANSPIRATION * BLOCK + j]
             annual[A_SOIL_EVAP, y, t] += st[s0 + S_SOIL_EVAP * BLOCK + j]
-            annual[A_QUICKFLOW, y, t] += st[s0 + S_QUICKFLOW * BLOCK + j]
-            annual[A_DRAINAGE, y, t] += st[s0 + S_DRAINAGE * BLOCK + j]
+            if par[p0 + P_WATER * BLOCK + j] > 0.5:
+                # open water: its rain was booked as drainage (see tile_day)
+                annual[A_OPEN_WATER, y, t] += wet_surface
+                annual[A_QUICKFLOW, y, t] += st[s0 + S_DRAINAGE * BLOCK + j] - wet_surface
+            else:
+                annual[A_INTERCEPTION, y, t] += wet_surface
+                annual[A_QUICKFLOW, y, t] += st[s0 + S_QUICKFLOW * BLOCK + j]
+                annual[A_DRAINAGE, y, t] += st[s0 + S_DRAINAGE * BLOCK + j]
 
 
 @njit(cache=True, error_model="numpy", inline="always")
@@ -752,7 +820,7 @@ def _run(
                 w = wet[d, t0 + j]
                 dr = dry[d, t0 + j]
                 sp = soil_pot[d, t0 + j]
-                ic, tf, tr, es, ow, qf, dn, c_end, s_end, e_end = tile_day(
+                ic, tf, tr, es, qf, dn, c_end, s_end, e_end = land_day(
                     r,
                     w,
                     dr,
@@ -760,21 +828,22 @@ def _run(
                     canopy[C_CAPACITY, dc, t0 + j],
                     canopy[C_COVER, dc, t0 + j],
                     canopy[C_INV_EXPOSED, dc, t0 + j],
-                    par[p0 + P_INV_RAIN_RATE * BLOCK + j],
+                    par[p0 + P_INV_RAIN_DAY * BLOCK + j],
                     par[p0 + P_RETENTION_LOW * BLOCK + j],
                     par[p0 + P_RETENTION_LOW_SLOPE * BLOCK + j],
                     par[p0 + P_RETENTION_HIGH * BLOCK + j],
                     par[p0 + P_RETENTION_HIGH_SLOPE * BLOCK + j],
-                    par[p0 + P_HALF_TAW * BLOCK + j],
                     par[p0 + P_TAW * BLOCK + j],
                     par[p0 + P_INV_READILY_SPAN * BLOCK + j],
                     par[p0 + P_TEW * BLOCK + j],
                     par[p0 + P_INV_STAGE2_SPAN * BLOCK + j],
-                    par[p0 + P_WATER * BLOCK + j],
                     st[s0 + S_CANOPY * BLOCK + j],
                     st[s0 + S_SOIL * BLOCK + j],
                     st[s0 + S_SURFACE * BLOCK + j],
                 )
+                # open water (flag 1.0): land_day gave it drainage = rain and nothing else, so
+                # its yield rain − E_wet is dn − E_wet; the year's sums are booked in _close_year
+                open_water = par[p0 + P_WATER * BLOCK + j] * w
                 st[s0 + S_CANOPY * BLOCK + j] = c_end
                 st[s0 + S_SOIL * BLOCK + j] = s_end
                 st[s0 + S_SURFACE * BLOCK + j] = e_end
@@ -782,27 +851,31 @@ def _run(
                 st[s0 + S_LOWEST_INPUT * BLOCK + j] = min(
                     lowest, st[s0 + S_LOWEST_INPUT * BLOCK + j]
                 )
-                st[s0 + S_RAIN * BLOCK + j] += r + (w + dr + sp) * 0.0  # NaN/inf if any is
-                st[s0 + S_WET_SURFACE * BLOCK + j] += ic + ow  # one of the two is 0.0
+                # NaN or inf if any input is (x·0 is NaN for x = ±inf or NaN, else 0)
+                st[s0 + S_RAIN * BLOCK + j] += r + (w + (sp + dr)) * 0.0
+                st[s0 + S_WET_SURFACE * BLOCK + j] += ic + open_water  # one of the two is 0
                 st[s0 + S_TRANSPIRATION * BLOCK + j] += tr
                 st[s0 + S_SOIL_EVAP * BLOCK + j] += es
                 st[s0 + S_QUICKFLOW * BLOCK + j] += qf
                 st[s0 + S_DRAINAGE * BLOCK + j] += dn
                 if keep_yield:
-                    daily_yield[d, t0 + j] = qf + dn
-                if keep_drainage:
-                    daily_drainage[d, t0 + j] = dn
-                if keep_daily:
-                    daily[0, d, t0 + j] = ic
-                    daily[1, d, t0 + j] = tf
-                    daily[2, d, t0 + j] = tr
-                    daily[3, d, t0 + j] = es
-                    daily[4, d, t0 + j] = ow
-                    daily[5, d, t0 + j] = qf
-                    daily[6, d, t0 + j] = dn
-                    daily[7, d, t0 + j] = c_end
-                    daily[8, d, t0 + j] = s_end
-                    daily[9, d, t0 + j] = e_end
+                    daily_yield[d, t0 + j] = (qf + dn) - open_water
+                if keep_drainage or keep_daily:
+                    is_water = par[p0 + P_WATER * BLOCK + j] > 0.5
+                    land_drainage = 0.0 if is_water else dn
+                    if keep_drainage:
+                        daily_drainage[d, t0 + j] = land_drainage
+                    if keep_daily:
+                        daily[0, d, t0 + j] = ic
+                        daily[1, d, t0 + j] = 0.0 if is_water else tf
+                        daily[2, d, t0 + j] = tr
+                        daily[3, d, t0 + j] = es
+                        daily[4, d, t0 + j] = open_water
+                        daily[5, d, t0 + j] = dn - w if is_water else qf
+                        daily[6, d, t0 + j] = land_drainage
+                        daily[7, d, t0 + j] = c_end
+                        daily[8, d, t0 + j] = s_end
+                        daily[9, d, t0 + j] = e_end
         if d == n_days - 1 or year_index[d + 1] != y:
             _close_year(y, par, st, annual, n_tiles)
 

@@ -304,24 +304,24 @@ def retention_mm(curve_number):
 def _kernel_parameters(params: TileParameters) -> np.ndarray:
     """Derive the per-tile kernel parameters, in the kernel's blocked layout.
 
-    An open-water tile gets TAW, 1 / ((1 − p)·TAW), TEW and the retention 0 (CN 100), so that
-    the kernel's land terms are exactly 0 on it with no branch (see ``kernels.tile_day``).
+    An open-water tile gets TAW, 1 / ((1 − p)·TAW) and TEW 0 and the retention
+    ``kernels.WATER_RETENTION_MM``, so that the kernel's land terms are exactly 0 on it but
+    drainage = rain, which the kernel books as open water (see ``kernels.tile_day``).
     """
     water = params.is_water
     land = ~water
     taw = np.where(water, 1.0, params.root_zone_capacity_mm)
-    cn = np.where(water, 100.0, params.curve_number)
+    cn = params.curve_number
     low, low_slope, high, high_slope = kernels.retention_lines(
         retention_mm(dry_curve_number(cn)), retention_mm(cn), retention_mm(wet_curve_number(cn)),
         taw,
     )
     rows = [None] * kernels.N_PAR
-    rows[kernels.P_INV_RAIN_RATE] = 1.0 / params.rain_rate_mm_per_h
-    rows[kernels.P_RETENTION_LOW] = low
-    rows[kernels.P_RETENTION_LOW_SLOPE] = low_slope
-    rows[kernels.P_RETENTION_HIGH] = high
-    rows[kernels.P_RETENTION_HIGH_SLOPE] = high_slope
-    rows[kernels.P_HALF_TAW] = np.where(land, 0.5 * taw, 0.0)
+    rows[kernels.P_INV_RAIN_DAY] = 1.0 / (24.0 * params.rain_rate_mm_per_h)
+    rows[kernels.P_RETENTION_LOW] = np.where(land, low, kernels.WATER_RETENTION_MM)
+    rows[kernels.P_RETENTION_LOW_SLOPE] = np.where(land, low_slope, 0.0)
+    rows[kernels.P_RETENTION_HIGH] = np.where(land, high, kernels.WATER_RETENTION_MM)
+    rows[kernels.P_RETENTION_HIGH_SLOPE] = np.where(land, high_slope, 0.0)
     rows[kernels.P_TAW] = np.where(land, taw, 0.0)
     rows[kernels.P_INV_READILY_SPAN] = np.where(
         land, 1.0 / ((1.0 - params.depletion_fraction) * taw), 0.0
