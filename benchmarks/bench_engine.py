@@ -27,7 +27,7 @@ from numba import njit
 from coveryield.engine.water_balance import TileParameters, simulate_tiles
 
 N_DAYS = 11_000
-TARGET_NS_MANY = 5.0
+TARGET_NS_MANY = 3.0
 TARGET_NS_DOZEN = 20.0
 ROUNDS_MANY = 8  # interleaved rounds of the 4,000-tile variants; the best of each counts
 

@@ -402,8 +402,42 @@ def _leaf_area(lai, params: TileParameters, shape):
     return array, 1
 
 
-def _canopy_rows(leaf_area, params: TileParameters) -> np.ndarray:
+#: Days of canopy rows computed at a time when the leaf area changes by day (whole years are
+#: added until a chunk holds at least this many days): a reused buffer of a year or so stays in
+#: cache and is not paged in afresh, where rows for the whole record would cost more to write
+#: and read than the day loop itself.
+CANOPY_CHUNK_DAYS = 366
+
+
+def _canopy_chunks(leaf_area, lai_step, years, params: TileParameters):
+    """Yield (start, stop, canopy rows) for the kernel: one chunk, or whole years with daily LAI.
+
+    Chunks end on year ends, so the kernel opens and closes each year inside one call.
+    """
+    n_days = years.shape[0]
+    if lai_step == 0:
+        yield 0, n_days, _canopy_rows(leaf_area, params)
+        return
+    year_starts = np.flatnonzero(np.diff(years)) + 1
+    bounds = [0]
+    for start in year_starts:
+        if start - bounds[-1] >= CANOPY_CHUNK_DAYS:
+            bounds.append(int(start))
+    bounds.append(n_days)
+    n_tiles = leaf_area.shape[1]
+    buffer = np.empty(kernels.N_CANOPY * max(np.diff(bounds)) * n_tiles)
+    for start, stop in zip(bounds[:-1], bounds[1:], strict=False):
+        size = kernels.N_CANOPY * (stop - start) * n_tiles
+        rows = buffer[:size].reshape(kernels.N_CANOPY, stop - start, n_tiles)  # C-contiguous
+        _canopy_rows(leaf_area[start:stop], params, out=rows, full_lai=leaf_area)
+        yield start, stop, rows
+
+
+def _canopy_rows(leaf_area, params: TileParameters, out=None, full_lai=None) -> np.ndarray:
     """Capacity, cover and 1 / exposed share for the leaf-area rows (``kernels.canopy_rows``).
+
+    ``out`` (shape (N_CANOPY, *leaf_area.shape)) is filled if given; ``full_lai`` is the whole
+    record of which ``leaf_area`` is a part, searched for the first invalid value.
 
     Raises
     ------
@@ -414,13 +448,15 @@ def _canopy_rows(leaf_area, params: TileParameters) -> np.ndarray:
     with np.errstate(divide="ignore", invalid="ignore"):
         per_lai = np.where(lai > 0, params.canopy_capacity_mm / lai, 0.0)
     land = (~params.is_water).astype(np.float64)
-    out = np.empty((kernels.N_CANOPY, *leaf_area.shape))
+    if out is None:
+        out = np.empty((kernels.N_CANOPY, *leaf_area.shape))
     closed = params.leaf_area_index is None
     invalid = kernels.canopy_rows(
         leaf_area, per_lai * land, params.extinction_coefficient, closed, land, out
     )
     if invalid:
-        _raise_first_bad_value({"lai": leaf_area}, np.arange(leaf_area.shape[1]))
+        whole = leaf_area if full_lai is None else full_lai
+        _raise_first_bad_value({"lai": whole}, np.arange(whole.shape[1]))
     return out
 
 
@@ -606,17 +642,19 @@ def simulate_tiles(
         raise ValueError("out: given with keep_daily_yield=False (expected None)")
     if keep_daily or keep_daily_drainage:
         drainage = np.empty((n_days, n_tiles), dtype=daily_yield.dtype)
-    canopy = _canopy_rows(leaf_area, params)
-    inputs = (*forcing, canopy, lai_step, years, par, state, annual)
     if keep_daily:
         daily = np.empty((kernels.N_DAILY, n_days, n_tiles))
-        kernels.run_tiles_daily(*inputs, daily_yield, drainage, daily)
-    elif keep_daily_drainage:
-        kernels.run_tiles_routed(*inputs, daily_yield, drainage)
-    elif keep_daily_yield:
-        kernels.run_tiles(*inputs, daily_yield)
-    else:
-        kernels.run_tiles_annual(*inputs)
+    for start, stop, canopy in _canopy_chunks(leaf_area, lai_step, years, params):
+        days = slice(start, stop)
+        inputs = (*(f[days] for f in forcing), canopy, lai_step, years[days], par, state, annual)
+        if keep_daily:
+            kernels.run_tiles_daily(*inputs, daily_yield[days], drainage[days], daily[:, days])
+        elif keep_daily_drainage:
+            kernels.run_tiles_routed(*inputs, daily_yield[days], drainage[days])
+        elif keep_daily_yield:
+            kernels.run_tiles(*inputs, daily_yield[days])
+        else:
+            kernels.run_tiles_annual(*inputs)
 
     # the kernel marks a non-finite input by a NaN or inf rain sum, a negative one by its
     # lowest-input state row
