@@ -816,10 +816,11 @@ def _run(
             p0 = b * (N_PAR * BLOCK)
             s0 = b * (N_STATE * BLOCK)
             for j in range(min(BLOCK, n_tiles - t0)):
-                r = rain[d, t0 + j]
-                w = wet[d, t0 + j]
-                dr = dry[d, t0 + j]
-                sp = soil_pot[d, t0 + j]
+                # widened to float64 as read: with float32 forcing all arithmetic stays float64
+                r = np.float64(rain[d, t0 + j])
+                w = np.float64(wet[d, t0 + j])
+                dr = np.float64(dry[d, t0 + j])
+                sp = np.float64(soil_pot[d, t0 + j])
                 ic, tf, tr, es, qf, dn, c_end, s_end, e_end = land_day(
                     r,
                     w,
