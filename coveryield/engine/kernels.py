@@ -234,19 +234,20 @@ def canopy_day(rain_mm, wet_mm, capacity_mm, inv_rain_rate_h_per_mm, store_mm):
     Rutter, A. J., Kershaw, K. A., Robins, P. C. & Morton, A. J. (1971). A predictive model of
     rainfall interception in forests, 1. Agric. Meteorol., 9, 367–384.
     """
-    share = min(1.0, rain_mm * (inv_rain_rate_h_per_mm * _PER_HOUR))  # D/24 = min(1, P/(24 R))
+    share = rain_mm * (inv_rain_rate_h_per_mm * _PER_HOUR)  # P/(24 R); D/24 = min(1, this)
     return _canopy_storm(rain_mm, share, wet_mm, capacity_mm, store_mm)
 
 
 @njit(cache=True, error_model="numpy", inline="always")
 def _canopy_storm(rain_mm, storm_share, loss_mm, capacity_mm, store_mm):
-    """The closed form of :func:`canopy_day` for a storm lasting ``storm_share`` of the day.
+    """The closed form of :func:`canopy_day` for a storm lasting ``min(1, storm_share)`` of the day.
 
-    ``loss_mm`` is the whole day's wet-canopy loss (24 e); the storm loses ``storm_share`` of
+    ``loss_mm`` is the whole day's wet-canopy loss (24 e), ≥ 0; the storm loses its share of
     it and the dry spell after it the rest, e·(24 − D) = loss − e·D, which is ≥ 0 exactly as
-    computed (``loss·share ≤ loss`` for share ≤ 1 under rounding).
+    computed. ``min(loss, loss·share)`` equals ``loss·min(1, share)`` bit for bit (rounding is
+    monotonic) in two operations instead of three.
     """
-    loss_storm = loss_mm * storm_share  # e·D
+    loss_storm = min(loss_mm, loss_mm * storm_share)  # e·D, D = min(24, P/R)
     wetted = store_mm + rain_mm
     unclipped = wetted - loss_storm  # x = S0 + P − e·D
     evap_storm = min(loss_storm, wetted)
@@ -362,15 +363,15 @@ def sparse_canopy_day(rain_mm, wet_mm, cover, capacity_mm, inv_rain_rate_h_per_m
     Gash, J. H. C., Lloyd, C. R. & Lachaud, G. (1995). Estimating sparse forest rainfall
     interception with an analytical model. J. Hydrol., 170, 79-86.
     """
-    share = min(1.0, rain_mm * (inv_rain_rate_h_per_mm * _PER_HOUR))  # D/24 = min(1, P/(24 R))
+    share = rain_mm * (inv_rain_rate_h_per_mm * _PER_HOUR)  # P/(24 R); D/24 = min(1, this)
     return sparse_canopy_storm(rain_mm, wet_mm, cover, capacity_mm, share, store_mm)
 
 
 @njit(cache=True, error_model="numpy", inline="always")
 def sparse_canopy_storm(rain_mm, wet_mm, cover, capacity_mm, storm_share, store_mm):
-    """:func:`sparse_canopy_day` for a storm lasting ``storm_share`` = D/24 of the day [-].
+    """:func:`sparse_canopy_day` for a storm lasting D/24 = min(1, ``storm_share``) of the day.
 
-    The day loop calls this form with D/24 = min(1, P·(1/(24 R))), 1/(24 R) being a per-tile
+    The day loop calls this form with ``storm_share`` = P·(1/(24 R)), 1/(24 R) being a per-tile
     constant; same parameters and returns as :func:`sparse_canopy_day` otherwise.
     """
     on_canopy = cover * rain_mm
@@ -443,9 +444,11 @@ def surface_layer_evaporation(
     # FAO-56 eqs. 77, 79: rain rewets first; the layer holds no more than the root zone
     depletion = max(depletion_mm - infiltration_mm, max(tew_mm - root_zone_water_mm, 0.0))
     left = tew_mm - depletion  # evaporable water left in the layer, 0..TEW
-    kr = min(left * inv_stage2_span, 1.0)  # FAO-56 eq. 74
+    # Kr·energy with Kr = min(1, left / (TEW − REW)) (FAO-56 eq. 74), as min(energy, energy·
+    # left/(TEW − REW)): the same value for energy ≥ 0, one operation fewer
+    kr_energy = min(energy_mm, energy_mm * (left * inv_stage2_span))
     exposed_cap = exposed * kc_max_et0_mm  # few·Kc,max·ETo, eq. 71
-    evaporation = min(min(kr * energy_mm, exposed_cap), min(exposed * left, root_zone_water_mm))
+    evaporation = min(min(kr_energy, exposed_cap), min(exposed * left, root_zone_water_mm))
     evaporation = max(evaporation, 0.0)  # rounding can leave `left` a hair below 0
     return evaporation, depletion + evaporation * inv_exposed  # FAO-56 eq. 77
 
@@ -693,7 +696,7 @@ def land_day(
     Dickinson, R. E. (1984). Modeling evapotranspiration for three-dimensional global climate
     models. Geophys. Monogr. 29, 58-72.
     """
-    storm_share = min(1.0, rain * inv_rain_day)  # D/24 = min(1, P/(24 R))
+    storm_share = rain * inv_rain_day  # P/(24 R); the storm lasts min(1, this) of the day
     interception, throughfall, canopy_end = sparse_canopy_storm(
         rain, wet, cover, capacity, storm_share, canopy_store
     )
@@ -706,8 +709,10 @@ def land_day(
     available = soil_store + infiltration
 
     wet_energy_used = min(interception / max(cover * wet, _TINY), 1.0)  # E_int / (c E_wet)
-    ks = min(soil_store * inv_readily_span, 1.0)  # FAO-56 eq. 84
-    transpiration = min(ks * dry * (1.0 - wet_energy_used), available)
+    # Ks·E_dry with Ks = min(1, (TAW − Dr)/((1 − p)·TAW)) (FAO-56 eq. 84), as min(E_dry,
+    # E_dry·…): the same value for E_dry ≥ 0, one operation fewer
+    ks_dry = min(dry, dry * (soil_store * inv_readily_span))
+    transpiration = min(ks_dry * (1.0 - wet_energy_used), available)
     kc_max_et0 = soil_pot + dry  # Kc,max·ETo (the forcing's soil_pot is Kc,max·ETo − E_dry)
     soil_evap, depletion_end = surface_layer_evaporation(
         infiltration,
