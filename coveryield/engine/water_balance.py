@@ -570,7 +570,9 @@ def simulate_tiles(
     Parameters
     ----------
     rain_mm : array_like, shape (n_days, n_tiles)
-        Gross rain on each tile [mm d⁻¹].
+        Gross rain on each tile [mm d⁻¹]. When all four forcing arrays are float32 they are
+        used as they are (half the bytes to read; each value is widened to float64 and all
+        arithmetic and sums are float64); otherwise all four are taken as float64.
     wet_mm : array_like, shape (n_days, n_tiles)
         Evaporation of a fully wet canopy (Penman–Monteith with rs = 0) per unit of
         canopy-covered area; for a water tile, open-water evaporation [mm d⁻¹].
@@ -617,8 +619,10 @@ def simulate_tiles(
 
     Notes
     -----
-    Inputs that are C-contiguous float64 are used without a copy. The physics of a day is
-    :func:`coveryield.engine.kernels.tile_day`; see the module docstring for the order.
+    Inputs that are C-contiguous float64 (or all four float32) are used without a copy. With a
+    daily ``lai`` the canopy rows are computed a year at a time (:data:`CANOPY_CHUNK_DAYS`).
+    The physics of a day is :func:`coveryield.engine.kernels.tile_day`; see the module
+    docstring for the order.
     """
     forcing = _check_forcing((rain_mm, wet_mm, dry_mm, soil_mm), params.n_tiles)
     n_days, n_tiles = forcing[0].shape
