@@ -7,12 +7,13 @@ the daily loop alone (the share-change target itself is in ``bench_catchment.py`
 
 The 4,000-tile target is checked on the daily loop with its output allocated outside it
 (``simulate_tiles(..., out=buffer)``, one buffer reused across repeats, as an ensemble or a
-repeated run does). For context it also prints the same call with a fresh output array (whose
-first touch costs page faults inside the loop), with a float32 daily yield, and with the annual
-sums only. Every variant is timed in the same rounds, interleaved, so that a noisy neighbour on
+repeated run does), on float64 forcing as the catchment builds it today, and checked again on
+float32 forcing (half the bytes to read; the engine widens each value). For context it also
+prints the same call with a fresh output array (whose first touch costs page faults inside the
+loop), with a float32 daily yield, and with the annual sums only. Every variant is timed in the same rounds, interleaved, so that a noisy neighbour on
 a shared machine slows all of them alike; the best round of each counts.
 
-Run: ``cd /work/main && PYTHONPATH=. .venv/bin/python benchmarks/bench_engine.py [--small]``
+Run: ``PYTHONPATH=. .venv/bin/python benchmarks/bench_engine.py [--small]`` from the repository.
 """
 
 from __future__ import annotations
