@@ -18,14 +18,13 @@ the net loss of ponds and lakes in a dry summer draws down the baseflow).
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
+from coveryield.adjustments import adjusted_cover
 from coveryield.climate import Climate, read_climate
-from coveryield.engine.kernels import ANNUAL_NAMES
-from coveryield.engine.routing import mix_and_route, mm_per_day_to_m3_per_s
-from coveryield.engine.water_balance import TileParameters, simulate_tiles
 from coveryield.errors import PlanFileError
 from coveryield.forcing import cover_evaporation, reference_et
 from coveryield.physics.curves import (
@@ -35,6 +34,19 @@ from coveryield.physics.curves import (
     zhang_evaporation,
 )
 from coveryield.plans import PlanFile
+
+if TYPE_CHECKING:
+    from coveryield.engine.water_balance import TileParameters
+
+# The engine (numba, ~0.15 s to load) is imported where it runs, never at import: a comparison
+# read from the tile cache needs neither the daily loop nor, for the file's plans, the routing.
+
+
+def simulate_tiles(*args, **kwargs):
+    """Run the engine's daily loop: :func:`coveryield.engine.water_balance.simulate_tiles`."""
+    from coveryield.engine.water_balance import simulate_tiles as daily_loop
+
+    return daily_loop(*args, **kwargs)
 
 
 @dataclass(frozen=True)
@@ -192,6 +204,8 @@ def mix_tiles(tiles: TileResults, weights: np.ndarray) -> MixedSeries:
     MixedSeries
         Catchment results [mm over the catchment; flow in m3 s-1].
     """
+    from coveryield.engine.routing import mix_and_route, mm_per_day_to_m3_per_s
+
     annual = {name: values @ weights for name, values in tiles.annual.items()}
     daily_yield, routed_mm, monthly_routed_mm = mix_and_route(
         tiles.daily_yield_mm,
@@ -247,6 +261,29 @@ def curve_evaporation(rain_mean_mm, et0_mean_mm, evap_mean_mm, bases):
 # Building and simulating the tiles
 
 
+def plan_climate(plan_file: PlanFile) -> Climate:
+    """Read the catchment's climate record from the file the plan file names.
+
+    Parameters
+    ----------
+    plan_file : PlanFile
+        The catchment (climate file, latitude [deg], elevation [m], wind height [m], coastal).
+
+    Returns
+    -------
+    Climate
+        The checked daily record.
+    """
+    spec = plan_file.catchment
+    return read_climate(
+        spec.climate,
+        latitude_deg=spec.latitude_deg,
+        elevation_m=spec.elevation_m,
+        wind_height_m=spec.wind_height_m,
+        coastal=spec.coastal,
+    )
+
+
 def zone_climates(plan_file: PlanFile, climate: Climate | None = None) -> dict[str, Climate]:
     """Each zone's climate: the catchment record with the zone's rain factor and temperature offset.
 
@@ -262,15 +299,8 @@ def zone_climates(plan_file: PlanFile, climate: Climate | None = None) -> dict[s
     dict of str -> Climate
         Zone name -> adjusted climate.
     """
-    spec = plan_file.catchment
     if climate is None:
-        climate = read_climate(
-            spec.climate,
-            latitude_deg=spec.latitude_deg,
-            elevation_m=spec.elevation_m,
-            wind_height_m=spec.wind_height_m,
-            coastal=spec.coastal,
-        )
+        climate = plan_climate(plan_file)
     return {
         zone.name: climate.adjusted(
             rain_factor=zone.rain_factor, temperature_offset_c=zone.temperature_offset_c
@@ -294,15 +324,18 @@ def tile_parameters(plan_file: PlanFile, tiles: list[tuple[str, str]]) -> TilePa
     TileParameters
         Canopy capacity at the cover's leaf area [mm] and that leaf area [m2 m-2], extinction
         coefficient [-], root-zone capacity = rooting depth x 1000 x available water capacity
-        [mm] (FAO-56 eq. 82), depletion fraction [-], curve number of the zone's soil group [-],
-        water flag, rain intensity [mm h-1], and the surface layer's REW and TEW from the zone's
-        soil texture [mm] (FAO-56 Table 19).
+        [mm] (FAO-56 eq. 82) times the plan file's ``root_zone_factor``, depletion fraction [-],
+        curve number of the zone's soil group [-], water flag, rain intensity [mm h-1], and the
+        surface layer's REW and TEW from the zone's soil texture [mm] (FAO-56 Table 19).
     """
+    from coveryield.engine.water_balance import TileParameters
+
     zones = {zone.name: zone for zone in plan_file.zones}
     covers = [plan_file.covers[cover] for _, cover in tiles]
     soils = [zones[zone] for zone, _ in tiles]
     n = len(tiles)
     surface = np.array([z.surface_layer_mm for z in soils]).reshape(n, 2)
+    taw_factor = plan_file.adjustments.root_zone_factor
     return TileParameters(
         canopy_capacity_mm=np.array([c.canopy_capacity_at(c.lai) for c in covers]),
         leaf_area_index=np.array([c.lai for c in covers]),
@@ -311,7 +344,7 @@ def tile_parameters(plan_file: PlanFile, tiles: list[tuple[str, str]]) -> TilePa
         total_evaporable_mm=surface[:, 1],
         root_zone_capacity_mm=np.array(
             [
-                1000.0 * c.rooting_depth_m * z.awc_m3_per_m3
+                taw_factor * 1000.0 * c.rooting_depth_m * z.awc_m3_per_m3  # FAO-56 eq. 82
                 for c, z in zip(covers, soils, strict=True)
             ]
         ),
@@ -335,6 +368,58 @@ def complete_years(dates: pd.DatetimeIndex) -> np.ndarray:
     return counts.index[counts.to_numpy() == lengths].to_numpy()
 
 
+def plan_tiles(plan_file: PlanFile) -> list[tuple[str, str]]:
+    """Every tile a plan file needs: each zone x each cover used by any plan, zone-major."""
+    cover_names = plan_file.covers_used()
+    return [(zone.name, cover) for zone in plan_file.zones for cover in cover_names]
+
+
+def tile_forcing(
+    plan_file: PlanFile,
+    climates: dict[str, Climate],
+    et0_by_zone: dict[str, np.ndarray],
+    tiles: list[tuple[str, str]],
+    *,
+    progress: bool = False,
+) -> tuple[np.ndarray, ...]:
+    """Rain and the potential evaporation rates of every tile, time-major for the engine.
+
+    Parameters
+    ----------
+    plan_file : PlanFile
+        Covers and adjustments (the surface-resistance factor is applied here).
+    climates : dict of str -> Climate
+        Each zone's climate (see :func:`zone_climates`).
+    et0_by_zone : dict of str -> numpy.ndarray
+        Each zone's FAO-56 reference evaporation [mm d-1].
+    tiles : list of (str, str)
+        (zone, cover) per tile.
+    progress : bool
+        Show a progress bar on stderr.
+
+    Returns
+    -------
+    rain_mm, wet_mm, dry_mm, soil_mm : numpy.ndarray
+        Each (n_days, n_tiles) [mm d-1]: gross rain, wet-canopy, dry-canopy and bare-soil
+        potential evaporation (see :func:`coveryield.forcing.cover_evaporation`).
+    """
+    from tqdm.auto import tqdm
+
+    n_days = len(next(iter(climates.values())).daily.index)
+    rain, wet, dry, soil = (np.empty((n_days, len(tiles))) for _ in range(4))
+    for k, (zone, cover_name) in enumerate(
+        tqdm(tiles, desc="potential evaporation per tile", unit="tile", disable=not progress)
+    ):
+        zone_climate = climates[zone]
+        cover = adjusted_cover(plan_file.covers[cover_name], plan_file.adjustments)
+        rates = cover_evaporation(zone_climate, cover, et0_mm=et0_by_zone[zone])
+        rain[:, k] = zone_climate.daily["rain_mm"].to_numpy()
+        wet[:, k] = rates["wet_mm"].to_numpy()
+        dry[:, k] = rates["dry_mm"].to_numpy()
+        soil[:, k] = rates["soil_mm"].to_numpy()
+    return rain, wet, dry, soil
+
+
 def simulate_catchment(
     plan_file: PlanFile, *, climate: Climate | None = None, progress: bool = False
 ) -> TileResults:
@@ -354,29 +439,15 @@ def simulate_catchment(
     TileResults
         Compact results of every tile, ready for :func:`mix_tiles`.
     """
-    from tqdm.auto import tqdm
+    from coveryield.engine.kernels import ANNUAL_NAMES
 
     climates = zone_climates(plan_file, climate)
-    cover_names = plan_file.covers_used()
-    tiles = [(zone.name, cover) for zone in plan_file.zones for cover in cover_names]
+    tiles = plan_tiles(plan_file)
     dates = next(iter(climates.values())).daily.index
-    n_days = len(dates)
-    rain, wet, dry, soil = (np.empty((n_days, len(tiles))) for _ in range(4))
     lai = daily_leaf_area(plan_file, tiles, dates)
-    et0_by_zone = {}
-    for k, (zone, cover_name) in enumerate(
-        tqdm(tiles, desc="potential evaporation per tile", unit="tile", disable=not progress)
-    ):
-        zone_climate = climates[zone]
-        if zone not in et0_by_zone:
-            et0_by_zone[zone] = reference_et(zone_climate).to_numpy()
-        rates = cover_evaporation(
-            zone_climate, plan_file.covers[cover_name], et0_mm=et0_by_zone[zone]
-        )
-        rain[:, k] = zone_climate.daily["rain_mm"].to_numpy()
-        wet[:, k] = rates["wet_mm"].to_numpy()
-        dry[:, k] = rates["dry_mm"].to_numpy()
-        soil[:, k] = rates["soil_mm"].to_numpy()
+    et0_by_zone = {zone: reference_et(c).to_numpy() for zone, c in climates.items()}
+    rain, wet, dry, soil = tile_forcing(plan_file, climates, et0_by_zone, tiles,
+                                        progress=progress)
 
     year_codes, year_values = pd.factorize(dates.year, sort=True)
     run = simulate_tiles(

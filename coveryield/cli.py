@@ -14,11 +14,15 @@ import sys
 
 #: Sub-command name -> module under coveryield.commands (imported lazily).
 COMMANDS = {
+    "cache": "cache",
+    "batch": "batch",
+    "calibrate": "calibrate",
     "climate": "climate",
     "compare": "compare",
     "covers": "covers",
     "demo": "demo",
     "serve": "serve",
+    "timeline": "timeline",
 }
 
 

@@ -17,11 +17,18 @@ from __future__ import annotations
 import functools
 from dataclasses import dataclass
 from os import PathLike
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
-from coveryield.catchment import MixedSeries, TileResults, mix_tiles, simulate_catchment
+from coveryield.catchment import (
+    MixedSeries,
+    TileResults,
+    mix_tiles,
+    plan_climate,
+    simulate_catchment,
+)
 from coveryield.flow_metrics import (
     LOW_FLOW_WINDOW_DAYS,
     LYNE_HOLLICK_ALPHA,
@@ -38,6 +45,10 @@ from coveryield.physics.curves import (
     crosscheck_reason,
 )
 from coveryield.plans import PlanFile, load_plan, validate_shares
+from coveryield.uncertainty.bands import BAND_PERCENTILES, band
+
+if TYPE_CHECKING:  # the engine (numba) loads only when an ensemble is simulated
+    from coveryield.uncertainty.ensemble import EnsembleResults
 
 CAUTION = (
     "Screening estimate only: confirm with licensed hydrological practice and local regulations "
@@ -59,6 +70,15 @@ ANNUAL_COLUMNS = (
     "yield_mm",
     "storage_change_mm",
     "yield_ml",
+)
+
+#: What an ensemble band means and does not mean (reports and summary.json carry it).
+ENSEMBLE_MEANING = (
+    "Each band runs from the 5th to the 95th percentile of the figure over the ensemble's "
+    "parameter sets: the spread of this model's answer when cover parameters vary over their "
+    "documented ranges (and catchment factors over a calibration's range). It is not a "
+    "confidence interval for the real catchment: the model's structure, the climate record and "
+    "the ranges themselves add uncertainty that the band does not show."
 )
 
 #: Exceedance probabilities at which the flow duration curve is tabulated [%].
@@ -265,11 +285,26 @@ class Comparison:
         The catchment, zones, covers and plans.
     tiles : TileResults
         Every tile simulated once (see :func:`coveryield.catchment.simulate_catchment`).
+    mixes : dict, optional
+        Tile weights (a tuple, see :meth:`TileResults.weights`) -> :class:`MixedSeries` already
+        computed for them (e.g. read from the tile cache); other weights are mixed on demand.
+    ensemble : EnsembleResults, optional
+        Parameter ensemble of the same tiles (see
+        :func:`coveryield.uncertainty.ensemble.simulate_ensemble`); when given, headlines
+        gain bands (:meth:`bands`). It may also be attached later (:attr:`ensemble`).
+    climate : Climate, optional
+        The climate record the tiles were simulated on; kept so that growing stands
+        (:meth:`timeline`) need not read it again (read on demand when not given).
     """
 
-    def __init__(self, plan_file: PlanFile, tiles: TileResults):
+    def __init__(self, plan_file: PlanFile, tiles: TileResults, mixes: dict | None = None,
+                 ensemble: EnsembleResults | None = None, *, climate=None):
         self.plan_file = plan_file
         self.tiles = tiles
+        self._mixes = dict(mixes or {})
+        self.ensemble = ensemble
+        self.climate = climate
+        self._stands = None
         rain = pd.Series(
             tiles.annual["rain_mm"] @ tiles.weights(plan_file.plans["current"]), index=tiles.years
         )
@@ -338,7 +373,10 @@ class Comparison:
         return self._outcome_of(name, shares)
 
     def _outcome_of(self, name: str, shares: dict) -> PlanOutcome:
-        mixed: MixedSeries = mix_tiles(self.tiles, self.tiles.weights(shares))
+        weights = self.tiles.weights(shares)
+        mixed: MixedSeries | None = self._mixes.get(tuple(weights))
+        if mixed is None:
+            mixed = mix_tiles(self.tiles, weights)
         months = pd.RangeIndex(1, 13, name="month")
         flow = mixed.flow_m3s
         threshold = self.plan_file.catchment.low_flow_m3s
@@ -411,6 +449,86 @@ class Comparison:
             baseflow_index=outcome.baseflow_index - base.baseflow_index,
             days_below_per_year=days,
         )
+
+    # ---- years after planting --------------------------------------------------------------
+
+    def timeline(
+        self,
+        plans=None,
+        *,
+        years: int = 30,
+        start_year: int | None = None,
+        schedules=None,
+        progress: bool = False,
+    ):
+        """Follow plans year by year after planting, against ``current`` on the same weather.
+
+        Each year is a weighted sum of the tiles simulated once and of growing stands' stage
+        tiles (simulated once on first use; see :mod:`coveryield.stands`), so a new schedule
+        or horizon never re-runs the daily loop for stands already met.
+
+        Parameters
+        ----------
+        plans : str or list of str, optional
+            Plans to follow (default: every plan but ``current``).
+        years : int
+            Length of the timeline [yr]; the record's complete years are cycled in order when
+            it is shorter.
+        start_year : int, optional
+            Calendar year of the first year, a label only (default: the record's first
+            complete year).
+        schedules : dict of str -> coveryield.schedules.Schedule, optional
+            Schedules to use instead of the file's (checked as in a plan file); a plan without
+            a schedule is made all at once in year 1.
+        progress : bool
+            Show progress on stderr while new stands are simulated.
+
+        Returns
+        -------
+        coveryield.timeline.Timeline
+            Per plan, a table by year: yield, change against ``current`` [mm/yr, %, ML/yr],
+            the mature plan's change on the same weather, planted area and stand age.
+
+        Raises
+        ------
+        coveryield.errors.PlanFileError
+            Unknown plan, bad schedule, or a planting year outside the timeline.
+        """
+        from coveryield.timeline import build_timeline
+
+        return build_timeline(
+            self, plans, years=years, start_year=start_year, schedules=schedules, progress=progress
+        )
+
+    def stand_results(self, keys, *, progress: bool = False):
+        """Stage tiles of the given stands, simulating only those not simulated before.
+
+        Parameters
+        ----------
+        keys : iterable of coveryield.stands.StandKey
+            (zone, planted cover, young-state cover) of each stand needed.
+        progress : bool
+            Show progress on stderr while new stands are simulated.
+
+        Returns
+        -------
+        coveryield.stands.StandResults
+            Holding at least the stands asked for.
+        """
+        from coveryield.stands import StandResults, simulate_stands
+
+        keys = list(dict.fromkeys(keys))
+        known = self._stands.keys if self._stands is not None else ()
+        missing = [k for k in keys if k not in known]
+        if missing:
+            if self.climate is None:
+                self.climate = plan_climate(self.plan_file)
+            new = simulate_stands(self.plan_file, missing, climate=self.climate, progress=progress)
+            self._stands = new if self._stands is None else self._stands.merged(new)
+        if self._stands is None:  # no growing stand needed at all
+            empty = {name: np.zeros((len(self.years), 0, 0)) for name in self.tiles.annual}
+            return StandResults((), np.asarray(self.years), empty)
+        return self._stands
 
     # ---- tables over all plans ------------------------------------------------------------
 
@@ -583,8 +701,10 @@ class Comparison:
                         "days_below_low_flow_change": c.days_below_per_year,
                     }
                 )
+            entry.update(self._band_entries(name))
             plans[name] = entry
         spec = self.plan_file.catchment
+        extra = {} if self.ensemble is None else {"ensemble": self.ensemble_summary()}
         return {
             "catchment": {
                 "name": spec.name,
@@ -613,11 +733,72 @@ class Comparison:
                 "days": "days per year",
             },
             "caution": CAUTION,
+            **extra,
             "plans": plans,
         }
 
+    # ---- bands from a parameter ensemble ---------------------------------------------------
 
-def compare(plan: PlanFile | str | PathLike, *, progress: bool = False) -> Comparison:
+    def bands(self, shares: dict[str, dict[str, float]]) -> dict[str, tuple[float, float, float]]:
+        """Bands of the headline figures for any shares (a weighted sum per member, no loop).
+
+        Parameters
+        ----------
+        shares : dict
+            Zone -> cover -> share [-].
+
+        Returns
+        -------
+        dict of str -> (p05, p50, p95)
+            ``mean_yield_mm``, ``change_mm`` and ``dry_year_change_mm`` [mm yr-1]; empty without
+            an ensemble.
+        """
+        if self.ensemble is None:
+            return {}
+        members = self.ensemble.headline_members(
+            self.tiles.weights(shares), self.tiles.weights(self.plan_file.plans["current"]),
+            self.dry_years)
+        return {key: band(values) for key, values in members.items()}
+
+    def _band_entries(self, name: str) -> dict[str, float]:
+        entries = {}
+        for key, values in self.bands(self.plan_file.plans[name]).items():
+            if name == "current" and key != "mean_yield_mm":
+                continue
+            for pct, value in zip(BAND_PERCENTILES, values, strict=True):
+                entries[f"{key}_p{pct:02.0f}"] = value
+        return entries
+
+    def ensemble_summary(self) -> dict:
+        """Describe what the ensemble varied and what its bands mean, JSON-ready."""
+        e = self.ensemble
+        return {
+            "members": e.n_members,
+            "seed": e.seed,
+            "percentiles": list(BAND_PERCENTILES),
+            "sampling": "Latin hypercube, uniform over each range (McKay et al. 1979)",
+            "varied": {d.name: [d.low, d.high] for d in e.design.dimensions},
+            "meaning": ENSEMBLE_MEANING,
+        }
+
+    def ensemble_table(self) -> pd.DataFrame:
+        """One row per member and plan: headline figures [mm yr-1] and the values drawn."""
+        if self.ensemble is None:
+            raise ValueError("no ensemble: compare with ensemble=N first")
+        base = self.tiles.weights(self.plan_file.plans["current"])
+        frames = []
+        for name in self.plan_names:
+            members = self.ensemble.headline_members(
+                self.tiles.weights(self.plan_file.plans[name]), base, self.dry_years)
+            frame = pd.DataFrame(members, index=self.ensemble.parameters.index)
+            frames.append(frame.assign(plan=name).join(self.ensemble.parameters))
+        table = pd.concat(frames).reset_index()
+        first = ["member", "plan", "mean_yield_mm", "change_mm", "dry_year_change_mm"]
+        return table[first + [c for c in table.columns if c not in first]]
+
+
+def compare(plan: PlanFile | str | PathLike, *, progress: bool = False, cache=None,
+            ensemble: int | None = None, seed: int | None = None) -> Comparison:
     """Compare every plan of a plan file.
 
     Parameters
@@ -626,6 +807,15 @@ def compare(plan: PlanFile | str | PathLike, *, progress: bool = False) -> Compa
         A loaded plan file or the path of a TOML plan file.
     progress : bool
         Show progress on stderr while tiles are prepared.
+    cache : coveryield.tile_cache.TileCache or bool, optional
+        Take the tile results from this on-disk cache when it holds them for exactly these
+        inputs, else simulate and store them there. True uses the default cache folder; None or
+        False (the default) neither reads nor writes a cache.
+    ensemble : int, optional
+        Also simulate this many parameter sets drawn by Latin hypercube, for bands on every
+        headline (the central figures stay those of the plan file's parameters).
+    seed : int, optional
+        Seed of the ensemble's draws; the same seed gives the same bands.
 
     Returns
     -------
@@ -638,4 +828,19 @@ def compare(plan: PlanFile | str | PathLike, *, progress: bool = False) -> Compa
         For a malformed plan or climate file.
     """
     plan_file = plan if isinstance(plan, PlanFile) else load_plan(plan)
-    return Comparison(plan_file, simulate_catchment(plan_file, progress=progress))
+    climate = None
+    if cache:
+        from coveryield.tile_cache import TileCache, cached_simulation
+
+        cache = TileCache() if cache is True else cache
+        tiles, mixes = cached_simulation(plan_file, cache, progress=progress)
+    else:
+        climate = plan_climate(plan_file)
+        tiles, mixes = simulate_catchment(plan_file, climate=climate, progress=progress), None
+    members = None
+    if ensemble is not None:
+        from coveryield.uncertainty.ensemble import simulate_ensemble
+
+        members = simulate_ensemble(plan_file, ensemble, seed=seed, progress=progress,
+                                    climate=climate)
+    return Comparison(plan_file, tiles, mixes, members, climate=climate)

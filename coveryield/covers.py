@@ -16,11 +16,18 @@ References
    models. Canopy storage ~0.2 mm per unit LAI.
 .. [6] Gash, J. H. C., Lloyd, C. R. & Lachaud, G. (1995). Estimating sparse forest rainfall
    interception with an analytical model. J. Hydrol., 170, 79-86 (canopy cover fraction).
+.. [7] Brown, A. E. et al. (2013). J. Hydrol., doi:10.1016/j.jhydrol.2012.12.031: a permanent
+   change of forest cover takes 8-25 years to reach a new equilibrium (abstract).
+.. [8] Farley, K. A., Jobbagy, E. G., & Jackson, R. B. (2005). Global Change Biology 11,
+   1565-1576: afforestation losses grew with plantation age for at least 20 years (abstract).
+.. [9] Brown, A. E., Zhang, L., McMahon, T. A., Western, A. W., & Vertessy, R. A. (2005).
+   J. Hydrol. 310, 28-61: afforestation takes well over 5 years to reach a new equilibrium
+   (review of paired catchments; from memory).
 """
 
 from __future__ import annotations
 
-from typing import Literal
+from typing import Literal, NamedTuple
 
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
@@ -30,6 +37,7 @@ from coveryield.physics.canopy import (
     canopy_capacity,
     canopy_cover_fraction,
 )
+from coveryield.physics.growth import chapman_richards, chapman_richards_rate
 
 BaseName = Literal["forest", "pasture", "crop", "water"]
 SOIL_GROUPS = ("A", "B", "C", "D")
@@ -74,6 +82,68 @@ PARAMETER_INFO: dict[str, tuple[str, str, str]] = {
         "farm ponds 1-3, small lakes and reservoirs 3-10 (mean depth of the mixed layer)",
         "common practice, no source; used by the heat storage of open water",
     ),
+}
+
+
+
+class SpreadRange(NamedTuple):
+    """Numeric range of one cover parameter, drawn from by ensembles (uniformly).
+
+    Attributes
+    ----------
+    low, high : float
+        Ends of the range [unit of the parameter]; the built-in value lies inside.
+    source : str
+        Where the range comes from, and how sure it is.
+    """
+
+    low: float
+    high: float
+    source: str
+
+
+#: Per built-in cover and parameter: the numeric range ensembles draw from (``compare
+#: --ensemble``). Only parameters that move this cover's evaporation are listed (crops take their
+#: transpiration from a Kc calendar, so their surface resistance is not; the curve number splits
+#: yield into quickflow and drainage but barely changes the yield, so it is not either; the
+#: canopy store follows the leaf area at 0.2 mm per unit LAI, so drawing ``lai`` moves it). A
+#: parameter a cover leaves unset (None: derived from another, e.g. a canopy store from the leaf
+#: area) is not drawn for that cover; it follows what it derives from. A
+#: derived cover takes its base's range relative to the base's value (a young pine 6 m high
+#: varies from 3 to 9 m when forest varies from 10 to 30 m) and moves with its base in every
+#: draw, both being the same kind of vegetation.
+PARAMETER_RANGES: dict[str, dict[str, SpreadRange]] = {
+    "forest": {
+        "albedo": SpreadRange(0.08, 0.15, "Oke (1987) coniferous 0.05-0.15, typical 0.08-0.12 "
+                              "(via secondary sources; typical from memory)"),
+        "height_m": SpreadRange(10.0, 30.0, "FAO-56 Table 12 conifers 10 m; plantations 10-30 m "
+                                "(from memory)"),
+        "rs_s_per_m": SpreadRange(100.0, 220.0, "daytime conifer canopies 60-150 s/m (from "
+                                  "memory); as a daily bulk value our range sits higher, around "
+                                  "the built-in 150 s/m (our choice)"),
+        "lai": SpreadRange(3.0, 10.0, "conifer plantations 3-10 (from memory)"),
+        "rooting_depth_m": SpreadRange(1.0, 2.0, "FAO-56 Table 22 conifer trees 1.0-1.5 m, "
+                                       "widened as Canadell et al. (1996) report far deeper "
+                                       "maxima (3.9 m for temperate conifers)"),
+    },
+    "pasture": {
+        "albedo": SpreadRange(0.17, 0.28, "Oke (1987) grass 0.17-0.28 (via secondary sources)"),
+        "height_m": SpreadRange(0.10, 0.30, "FAO-56 Table 12 grazing pasture: extensive 0.10 m, "
+                                "rotated 0.15-0.30 m"),
+        "rs_s_per_m": SpreadRange(50.0, 100.0, "FAO-56 eq. 5, rs = 100 / (0.5 LAI), for LAI 2-4 "
+                                  "(recomputed)"),
+        "lai": SpreadRange(2.0, 4.0, "grass 2-4 (from memory); FAO-56 reference 2.88"),
+        "rooting_depth_m": SpreadRange(0.5, 1.5, "FAO-56 Table 22 grazing pasture 0.5-1.5 m"),
+    },
+    "crop": {
+        "albedo": SpreadRange(0.16, 0.26, "Oke (1987) cereals 0.16-0.26 (via secondary sources)"),
+        "lai": SpreadRange(3.0, 6.0, "cereals 3-6 (from memory)"),
+        "rooting_depth_m": SpreadRange(1.0, 1.5, "FAO-56 Table 22 spring wheat 1.0-1.5 m"),
+    },
+    "water": {
+        "albedo": SpreadRange(0.06, 0.10, "open water 0.06-0.08 as a daily mean, more at low sun "
+                              "(Oke 1987 via secondary sources); widened for winter sun"),
+    },
 }
 
 
@@ -182,6 +252,72 @@ class KcCalendar(BaseModel):
         return np.where(in_season, share, 0.0)
 
 
+class Growth(BaseModel):
+    """How a planted stand of a forest cover grows toward the cover's mature parameters.
+
+    A stand planted on other land starts from a young state (the cover it replaces, or
+    ``start``) and grows along the Chapman–Richards curve g(a) = (1 − e^(−k·a))^p, which reaches
+    95 % at the maturity age (:mod:`coveryield.physics.growth`). How g moves the stand's
+    parameters and its crown cover is described in :mod:`coveryield.stands`.
+
+    Parameters
+    ----------
+    maturity_years : float
+        Age at which the stand has grown 95 % of the way to its mature state [yr], > 0.
+    shape : float
+        Chapman–Richards exponent p [-], 1 to 10; p = 1 rises from the start, larger p gives
+        slow establishment years first.
+    rotation_years : int or None
+        Age at which stands are clear-felled and replanted (regrowth starts again from the
+        young state) [yr]; None: never felled.
+    start : str or None
+        Cover whose parameters a new stand starts from (a cover that derives from pasture);
+        None: the cover the planting replaces when that derives from pasture, else the
+        built-in ``pasture``.
+
+    References
+    ----------
+    Richards (1959); Chapman (1961) for the curve (from memory). Default ages: see
+    :data:`DEFAULT_GROWTH`.
+    """
+
+    model_config = ConfigDict(frozen=True, extra="forbid")
+
+    maturity_years: float = Field(20.0, gt=0.0, le=300.0)
+    shape: float = Field(1.5, ge=1.0, le=10.0)
+    rotation_years: int | None = Field(None, ge=2, le=500)
+    start: str | None = Field(None, min_length=1)
+
+    @property
+    def rate_per_year(self) -> float:
+        """Chapman–Richards rate constant k that gives 95 % at the maturity age [yr⁻¹]."""
+        return chapman_richards_rate(self.maturity_years, self.shape)
+
+    def fraction(self, age_years):
+        """Growth reached at an age: 0 at planting, 0.95 at the maturity age, toward 1 [-].
+
+        Parameters
+        ----------
+        age_years : float or array_like
+            Age since planting (or since the last felling) [yr].
+
+        Returns
+        -------
+        float or numpy.ndarray
+            g(a) = (1 − e^(−k·a))^p [-] (Richards 1959, eq. 1).
+        """
+        return chapman_richards(age_years, self.rate_per_year, self.shape)
+
+
+#: Growth of the built-in ``forest`` (an evergreen conifer plantation). Maturity at 20 years:
+#: Brown et al. (2013) give 8-25 years for a permanent change of forest cover to reach a new
+#: equilibrium and Farley et al. (2005) saw losses grow with plantation age for at least 20
+#: years (both abstracts); 20 years is our choice within that span. Shape p = 1.5: a slow
+#: establishment (small change in the first two years, Brown et al. 2005), our choice; fits of
+#: conifer height growth commonly give p between about 1 and 3 (from memory). No rotation.
+DEFAULT_GROWTH = Growth(maturity_years=20.0, shape=1.5)
+
+
 class Cover(BaseModel):
     """Parameters of one land cover.
 
@@ -222,6 +358,9 @@ class Cover(BaseModel):
     water_depth_m : float
         For open water: mean depth of the mixed water column, which sets how much heat the
         water stores [m].
+    growth : Growth or None
+        For covers that derive from forest: how a newly planted stand grows toward these
+        (mature) parameters over the years; None: the cover does not grow (a fixed stage).
     description : str
         Free text shown to users.
     """
@@ -242,6 +381,7 @@ class Cover(BaseModel):
     curve_number: dict[str, float]
     kc_calendar: KcCalendar | None = None
     water_depth_m: float = Field(2.0, gt=0.0, le=500.0)
+    growth: Growth | None = None
 
     @field_validator("curve_number")
     @classmethod
@@ -273,7 +413,17 @@ class Cover(BaseModel):
                 )
         if self.base == "crop" and self.kc_calendar is None:
             raise ValueError("a crop cover needs a kc_calendar")
+        if self.growth is not None and self.base != "forest":
+            raise ValueError(
+                f"a growth trajectory is only for covers that derive from forest; this cover "
+                f"derives from {self.base}"
+            )
         return self
+
+    @property
+    def grows(self) -> bool:
+        """True for a cover whose newly planted stands grow along a trajectory."""
+        return self.growth is not None
 
     @property
     def is_water(self) -> bool:
@@ -339,6 +489,7 @@ def _builtin_covers() -> dict[str, Cover]:
         rooting_depth_m=1.5,  # FAO-56 Table 22, conifer trees 1.0-1.5 m
         depletion_fraction=0.70,  # FAO-56 Table 22, conifer trees
         curve_number={"A": 30, "B": 55, "C": 70, "D": 77},  # TR-55 woods, good (from memory)
+        growth=DEFAULT_GROWTH,  # maturity 20 yr, p 1.5: see DEFAULT_GROWTH for the sources
     )
     pasture = Cover(
         name="pasture",
@@ -427,3 +578,18 @@ def derive_cover(
     fields["name"] = name
     fields["base"] = parent.base
     return Cover.model_validate(fields)
+
+
+def _check_parameter_ranges() -> None:
+    """Every range holds its built-in value (run at import: a wrong table fails loudly)."""
+    for cover_name, ranges in PARAMETER_RANGES.items():
+        cover = BUILTIN_COVERS[cover_name]
+        for parameter, spread in ranges.items():
+            value = getattr(cover, parameter)
+            if value is not None and not spread.low <= value <= spread.high:
+                raise AssertionError(
+                    f"PARAMETER_RANGES[{cover_name!r}][{parameter!r}] = "
+                    f"{spread.low}-{spread.high} does not hold the built-in value {value}")
+
+
+_check_parameter_ranges()

@@ -21,3 +21,19 @@ class PlanFileError(CoveryieldError, ValueError):
 
 class OutputError(CoveryieldError, OSError):
     """An output could not be written (for example the target exists and would be overwritten)."""
+
+
+class MissingExtraError(CoveryieldError, ImportError):
+    """An optional part of coveryield is used without its extra packages installed."""
+
+
+class BatchError(CoveryieldError, ValueError):
+    """A batch cannot start: no plan files, an unsuitable output folder, no reachable cluster."""
+
+
+class ObservedFlowError(CoveryieldError, ValueError):
+    """An observed-flow record is malformed, or does not fit the climate record it is set beside."""
+
+
+class CalibrationError(CoveryieldError, ValueError):
+    """A calibration cannot be set up (e.g. too few observed days in a period)."""

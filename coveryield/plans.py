@@ -1,12 +1,15 @@
 """Plan files: the catchment, its zones, extra covers and the land-use plans to compare.
 
-A plan file is TOML with four sections::
+A plan file is TOML with these sections::
 
     [catchment]                    # name, area_km2, latitude_deg, elevation_m, climate, ...
     [[zones]]                      # one table per zone: name, area_share, rain_factor, soil, ...
     [covers.young-pine]            # optional: new covers derived from a built-in one
+    [adjustments]                  # optional: catchment-wide factors (coveryield.adjustments)
     [plans.current]                # the baseline plan (required); then any other plans
     upper = { pasture = 0.7, forest = 0.3 }
+    [schedules.plant-upper]        # optional: in which years a plan's changes happen
+    [[schedules.plant-upper.plantings]]   # (see coveryield.schedules)
 
 :func:`load_plan` reads and checks a file and returns a frozen :class:`PlanFile`. Every mistake in
 the file is collected and reported in ONE :class:`~coveryield.errors.PlanFileError` whose message
@@ -25,12 +28,15 @@ import sys
 import tempfile
 from collections.abc import Iterable, Mapping
 from pathlib import Path
-from typing import Any, Literal, get_args, get_origin
+from types import NoneType, UnionType
+from typing import Any, Literal, Union, get_args, get_origin
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, ValidationInfo, field_validator
 
-from coveryield.covers import BUILTIN_COVERS, Cover, derive_cover
+from coveryield.adjustments import Adjustments
+from coveryield.covers import BUILTIN_COVERS, DEFAULT_GROWTH, Cover, derive_cover
 from coveryield.errors import OutputError, PlanFileError
+from coveryield.schedules import Schedule, growth_start_problems, read_schedules
 from coveryield.soils import (
     SOIL_TEXTURES,
     available_water_capacity,
@@ -53,7 +59,7 @@ BASELINE_PLAN = "current"
 #: Shares (zone area shares, cover shares within a zone) must sum to 1 within this [-].
 SHARE_TOLERANCE = 1e-6
 #: The sections a plan file may contain.
-SECTIONS = ("catchment", "zones", "covers", "plans")
+SECTIONS = ("catchment", "zones", "covers", "plans", "adjustments", "schedules")
 #: Cover parameters a derived cover may override (everything except its name and base).
 COVER_PARAMETERS = tuple(f for f in Cover.model_fields if f not in ("name", "base"))
 
@@ -190,6 +196,11 @@ class PlanFile(BaseModel):
         Built-in covers followed by the covers the file derives, in file order.
     plans : dict
         Plan name -> zone name -> cover name -> share of the zone's area [-].
+    adjustments : Adjustments
+        Catchment-wide factors applied to every tile (all 1 unless the file sets them).
+    schedules : dict
+        Plan name -> :class:`~coveryield.schedules.Schedule`: in which years that plan's
+        changes happen (plans without one are taken as made at once in year 1).
     """
 
     model_config = ConfigDict(frozen=True, extra="forbid")
@@ -199,6 +210,8 @@ class PlanFile(BaseModel):
     zones: tuple[ZoneSpec, ...]
     covers: dict[str, Cover]
     plans: dict[str, dict[str, dict[str, float]]]
+    adjustments: Adjustments = Adjustments()
+    schedules: dict[str, Schedule] = Field(default_factory=dict)
 
     def zone(self, name: str) -> ZoneSpec:
         """Return the zone called ``name``; a :class:`PlanFileError` lists the zones if none."""
@@ -219,6 +232,14 @@ class PlanFile(BaseModel):
     def plan_names(self) -> tuple[str, ...]:
         """Plan names, the baseline ``current`` first, then the others in file order."""
         return (BASELINE_PLAN,) + tuple(p for p in self.plans if p != BASELINE_PLAN)
+
+    def input_files(self) -> dict[str, Path]:
+        """Files a run of this plan file reads: role -> path.
+
+        Output writers never replace these (see :mod:`coveryield.output_folder`). A reader of
+        further files (observed flow, schedules) adds them here.
+        """
+        return {"plan file": Path(self.source), "climate file": Path(self.catchment.climate)}
 
     @property
     def derived_covers(self) -> dict[str, Cover]:
@@ -299,10 +320,20 @@ class PlanFile(BaseModel):
         for name, cover in self.derived_covers.items():
             lines += ["", f"[covers.{_key(name)}]", f"base = {_toml_value(cover.base)}"]
             lines += [f"{k} = {_toml_value(v)}" for k, v in _cover_overrides(cover).items()]
+        if not self.adjustments.is_default:
+            lines += ["", "[adjustments]"]
+            lines += [f"{k} = {_toml_value(v)}" for k, v in self.adjustments.toml_items().items()]
         for plan_name in self.plan_names:
             lines += ["", f"[plans.{_key(plan_name)}]"]
             lines += [f"{_key(zone)} = {_toml_value(shares)}"
                       for zone, shares in self.plans[plan_name].items()]
+        for plan_name, schedule in self.schedules.items():
+            where = f"schedules.{_key(plan_name)}"
+            lines += ["", f"[{where}]", f"description = {_toml_value(schedule.description)}"]
+            for planting in schedule.plantings:
+                lines += ["", f"[[{where}.plantings]]"]
+                lines += [f"{k} = {_toml_value(v)}"
+                          for k, v in planting.model_dump(exclude_none=True).items()]
         return "\n".join(lines) + "\n"
 
 
@@ -375,11 +406,16 @@ def plan_from_dict(data: Mapping[str, Any], *, source: str | Path) -> PlanFile:
     catchment = _read_catchment(data, source.parent, problems)
     zones = _read_zones(data, problems)
     covers = _read_covers(data, problems)
+    adjustments = _read_adjustments(data, problems)
+    problems += growth_start_problems(covers)
     plans = _read_plans(data, zones, covers, problems)
+    read_all = isinstance(data.get("plans"), Mapping) and set(plans) == set(data["plans"])
+    schedules = read_schedules(data, plans if read_all else {}, covers, problems)
     if problems:
         raise PlanFileError(_problem_message(source, problems))
     return PlanFile(source=source, catchment=catchment, zones=tuple(zones), covers=covers,
-                    plans=plans)
+                    plans=plans, adjustments=adjustments,
+                    schedules=schedules)
 
 
 def _read_catchment(data, base_dir: Path, problems: list[Problem]) -> CatchmentSpec | None:
@@ -395,6 +431,19 @@ def _read_catchment(data, base_dir: Path, problems: list[Problem]) -> CatchmentS
     except ValidationError as exc:
         problems += _pydantic_problems(exc, CatchmentSpec, "catchment")
         return None
+
+
+def _read_adjustments(data, problems: list[Problem]) -> Adjustments:
+    """Read the optional [adjustments] table (defaults when absent or invalid; problems noted)."""
+    section = data.get("adjustments", {})
+    if not isinstance(section, Mapping):
+        problems.append(("adjustments", section, "expected an [adjustments] table"))
+        return Adjustments()
+    try:
+        return Adjustments.model_validate(section)
+    except ValidationError as exc:
+        problems += _pydantic_problems(exc, Adjustments, "adjustments")
+        return Adjustments()
 
 
 def _read_zones(data, problems: list[Problem]) -> list[ZoneSpec] | None:
@@ -467,6 +516,8 @@ def _derive(name: str, spec: Mapping, covers: dict[str, Cover], where: str,
                          f"{', '.join(covers)} (a derived cover must be defined before it is "
                          "used as a base)"))
     overrides = {k: v for k, v in spec.items() if k != "base"}
+    _growth_override(where, overrides, covers.get(base) if isinstance(base, str) else None,
+                     problems)
     for key, value in overrides.items():
         if key not in COVER_PARAMETERS:
             problems.append((f"{where}.{_key(key)}", value, "unknown cover parameter; allowed "
@@ -477,7 +528,7 @@ def _derive(name: str, spec: Mapping, covers: dict[str, Cover], where: str,
     if len(problems) > found:
         return None
     parent = covers[base]
-    for nested in ("kc_calendar", "curve_number"):  # partial tables update the parent's table
+    for nested in ("kc_calendar", "curve_number", "growth"):  # partial tables update the parent's
         parent_value = getattr(parent, nested)
         if isinstance(overrides.get(nested), Mapping) and parent_value is not None:
             old = parent_value if isinstance(parent_value, dict) else parent_value.model_dump()
@@ -487,6 +538,24 @@ def _derive(name: str, spec: Mapping, covers: dict[str, Cover], where: str,
     except ValidationError as exc:
         problems += _pydantic_problems(exc, Cover, where)
         return None
+
+
+def _growth_override(where: str, overrides: dict, parent: Cover | None,
+                     problems: list[Problem]) -> None:
+    """``growth = false`` (a cover that does not grow) or a growth table, on forest covers only."""
+    if "growth" not in overrides:
+        return
+    value = overrides["growth"]
+    forest = parent is None or parent.base == "forest"
+    if not isinstance(value, (bool, Mapping)):
+        problems.append((f"{where}.growth", value, "expected a table (maturity_years, shape, "
+                         "rotation_years, start) or false for a cover that does not grow"))
+    elif value is not False and not forest:
+        problems.append((f"{where}.growth", value, "a growth trajectory is only for covers that "
+                         f"derive from forest; this cover derives from {parent.base}"))
+    elif isinstance(value, bool):
+        overrides["growth"] = ((parent.growth if parent is not None else None) or DEFAULT_GROWTH
+                               ) if value else None
 
 
 def _read_plans(data, zones: list[ZoneSpec] | None, covers: dict[str, Cover],
@@ -693,7 +762,7 @@ def _toml_value(value: Any) -> str:
     if isinstance(value, (list, tuple)):
         return "[" + ", ".join(_toml_value(v) for v in value) + "]"
     if isinstance(value, BaseModel):
-        return _toml_value(value.model_dump())
+        return _toml_value(value.model_dump(exclude_none=True))
     raise TypeError(f"cannot write {value!r} as TOML")
 
 
@@ -708,7 +777,11 @@ def _relative_path(path: Path, folder: Path) -> str:
 def _cover_overrides(cover: Cover) -> dict[str, Any]:
     """Parameters in which a derived cover differs from its built-in base."""
     base = BUILTIN_COVERS[cover.base]
-    return {f: getattr(cover, f) for f in COVER_PARAMETERS if getattr(cover, f) != getattr(base, f)}
+    changed = {f: getattr(cover, f) for f in COVER_PARAMETERS
+               if getattr(cover, f) != getattr(base, f)}
+    if "growth" in changed and changed["growth"] is None:
+        changed["growth"] = False  # a forest cover that does not grow
+    return changed
 
 
 def _toml_syntax_message(path: Path, text: str, exc: Exception) -> str:
@@ -747,12 +820,15 @@ def _pydantic_problems(exc: ValidationError, model: type[BaseModel], prefix: str
 
 def _plain_words(error: Mapping[str, Any], model: type[BaseModel], loc: list[str]) -> str:
     kind = error["type"]
-    field = model.model_fields.get(loc[0]) if len(loc) == 1 else None
+    owner = _nested_model(model, loc[:-1])
+    known_owner = len(loc) == 1 or (len(loc) > 1 and owner is not model)
+    field = owner.model_fields.get(loc[-1]) if known_owner else None
     if kind == "missing":
         wanted = f"; expected {_describe(field)}" if field is not None else ""
         return f"required key is missing{wanted}"
     if kind == "extra_forbidden":
-        allowed = [f for f in model.model_fields if model is not Cover or f in COVER_PARAMETERS]
+        nested = _nested_model(model, loc[:-1])
+        allowed = [f for f in nested.model_fields if nested is not Cover or f in COVER_PARAMETERS]
         return f"unknown key; allowed keys: {', '.join(allowed)}"
     if kind == "value_error":
         return str(error.get("ctx", {}).get("error", error["msg"]))
@@ -762,12 +838,29 @@ def _plain_words(error: Mapping[str, Any], model: type[BaseModel], loc: list[str
     return message[:1].lower() + message[1:]
 
 
+def _nested_model(model: type[BaseModel], loc: list[str]) -> type[BaseModel]:
+    """Return the model a key path leads to (e.g. Growth for ``growth`` in a Cover)."""
+    for part in loc:
+        field = model.model_fields.get(part)
+        annotation = _without_none(field.annotation) if field is not None else None
+        if not (isinstance(annotation, type) and issubclass(annotation, BaseModel)):
+            return model
+        model = annotation
+    return model
+
+
+def _without_none(annotation: Any) -> Any:
+    """``X`` for an optional annotation ``X | None``; other annotations unchanged."""
+    if get_origin(annotation) in (Union, UnionType):
+        args = [a for a in get_args(annotation) if a is not NoneType]
+        if len(args) == 1:
+            return args[0]
+    return annotation
+
+
 def _describe(field) -> str:
     """Plain words for what a pydantic field accepts, e.g. 'a number greater than 0'."""
-    annotation = field.annotation
-    optional = [a for a in get_args(annotation) if a is not type(None)]
-    if type(None) in get_args(annotation) and len(optional) == 1:  # e.g. float | None
-        annotation = optional[0]
+    annotation = _without_none(field.annotation)
     if get_origin(annotation) is Literal:
         return "one of " + ", ".join(_toml_value(a) for a in get_args(annotation))
     words = {float: "a number", int: "a whole number", bool: "true or false", str: "text",

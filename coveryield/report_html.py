@@ -13,11 +13,14 @@ from __future__ import annotations
 import html
 import io
 import math
+import string
 from collections.abc import Callable, Iterable
 
 import numpy as np
 
+from coveryield import palette
 from coveryield.comparison import CAUTION, YIELD_DEFINITION, Comparison, PlanChange, PlanOutcome
+from coveryield.palette import PLAN_STYLES
 from coveryield.physics.curves import (
     CROSSCHECK_CHANGE_TOLERANCE_PCT,
     CROSSCHECK_TYPICAL_OFFSET_PCT,
@@ -26,20 +29,6 @@ from coveryield.physics.curves import (
 )
 
 __all__ = ["render_report", "PLAN_STYLES"]
-
-#: Colour, marker, line style and bar hatch per plan, in plan order (``current`` first), cycled
-#: if there are more plans. Hues are far apart for the common colour-vision deficiencies and
-#: differ in lightness; markers, dashes and hatches keep plans apart in greyscale print
-#: (common practice, no source).
-PLAN_STYLES = (
-    ("#222222", "o", "-", ""),
-    ("#0072b2", "s", "--", "//"),
-    ("#d55e00", "^", "-.", "\\\\"),
-    ("#009e73", "D", ":", "xx"),
-    ("#cc79a7", "v", (0, (5, 1, 1, 1, 1, 1)), ".."),
-    ("#e69f00", "P", (0, (8, 2)), "--"),
-    ("#56b4e9", "X", (0, (2, 2)), "++"),
-)
 
 _MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
@@ -55,13 +44,13 @@ _RC = {
     "legend.frameon": False,
 }
 
-_CSS = """
-body { font-family: "Segoe UI", "Helvetica Neue", Arial, sans-serif; color: #1a1a1a;
+_CSS = string.Template("""
+body { font-family: "Segoe UI", "Helvetica Neue", Arial, sans-serif; color: $ink;
        max-width: 1060px; margin: 1.5em auto; padding: 0 1.2em; line-height: 1.4; }
 h1 { font-size: 1.55em; margin: 0 0 .2em; }
 h2 { font-size: 1.15em; margin: 1.6em 0 .4em; border-bottom: 1px solid #999; }
 p.meta { margin: .1em 0; color: #333; }
-.caution { border: 3px solid #a33a00; background: #fff4ec; padding: .6em .9em; margin: 1em 0;
+.caution { border: 3px solid $edge; background: $bg; padding: .6em .9em; margin: 1em 0;
            font-weight: 600; }
 table { border-collapse: collapse; font-size: .86em; margin: .4em 0 .6em; }
 th, td { border: 1px solid #bbb; padding: .25em .45em; }
@@ -69,7 +58,7 @@ th { background: #f0f0f0; font-weight: 600; vertical-align: bottom; }
 td.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 td.name { white-space: nowrap; }
 td.changed { font-weight: 700; }
-td.flag { font-weight: 700; color: #a33a00; }
+td.flag { font-weight: 700; color: $alert; }
 tr.unused td { color: #777; }
 td[rowspan] { vertical-align: top; }
 .swatch { display: inline-block; width: .9em; height: .9em; margin-right: .35em;
@@ -85,7 +74,9 @@ figcaption { font-size: .88em; color: #333; margin-top: .2em; }
   h2 { page-break-after: avoid; break-after: avoid; }
   table, figure { page-break-inside: avoid; break-inside: avoid; }
 }
-"""
+""").substitute(
+    ink=palette.INK, edge=palette.CAUTION_EDGE, bg=palette.CAUTION_BG, alert=palette.ALERT
+)
 
 
 # ---- small formatters ----------------------------------------------------------------------
@@ -114,7 +105,7 @@ def _td(text: str, cls: str = "n") -> str:
 
 
 def _style(index: int) -> tuple:
-    return PLAN_STYLES[index % len(PLAN_STYLES)]
+    return palette.plan_style(index)
 
 
 def _swatch(index: int) -> str:
@@ -264,6 +255,46 @@ def _tile_table(result: Comparison) -> str:
     return "<table>" + head + "".join(rows) + "</table>"
 
 
+def _band_cell(central: float, band: tuple[float, float, float], signed: bool = True) -> str:
+    fmt = _signed if signed else _num
+    return _td(f"{fmt(central)} <small>({fmt(band[0])} to {fmt(band[2])})</small>")
+
+
+def _band_section(result: Comparison) -> list[str]:
+    """Headlines with their ensemble bands (nothing without an ensemble)."""
+    if result.ensemble is None:
+        return []
+    from coveryield.comparison import ENSEMBLE_MEANING
+
+    e = result.ensemble
+    head = (
+        "<tr><th>plan</th><th>mean annual yield<br>mm/yr</th><th>change against current<br>"
+        "mm/yr</th><th>change in the driest 10 % of years<br>mm/yr</th></tr>"
+    )
+    rows = []
+    for i, name in enumerate(result.plan_names):
+        o = result.outcome(name)
+        b = result.bands(result.plan_file.plans[name])
+        cells = [_td(_swatch(i) + _esc(name), "name"), _band_cell(o.mean_yield_mm,
+                                                                  b["mean_yield_mm"], False)]
+        if name == "current":
+            cells += [_td("baseline", "name"), _td("")]
+        else:
+            c = result.change(o)
+            cells += [_band_cell(c.yield_mm, b["change_mm"]),
+                      _band_cell(c.dry10_mm, b["dry_year_change_mm"])]
+        rows.append("<tr>" + "".join(cells) + "</tr>")
+    varied = ", ".join(f"<code>{_esc(d.name)}</code> {d.low:.3g}–{d.high:.3g}"
+                       for d in e.design.dimensions)
+    return [
+        "<h2>Uncertainty bands</h2>",
+        "<table>" + head + "".join(rows) + "</table>",
+        f'<p class="note">Central figure (the plan file\'s parameters), then in brackets the 5th '
+        f"to 95th percentile over {e.n_members} parameter sets drawn by Latin hypercube "
+        f"(seed {_esc(e.seed)}), uniformly over: {varied}. {_esc(ENSEMBLE_MEANING)}</p>",
+    ]
+
+
 # ---- charts --------------------------------------------------------------------------------
 
 
@@ -302,7 +333,7 @@ def _annual_chart(fig, result: Comparison) -> None:
         ax.axvspan(
             year - 0.5,
             year + 0.5,
-            color="#e6e6e6",
+            color=palette.DRY_BAND,
             zorder=0,
             label="driest 10 % of years (by rain)" if k == 0 else None,
         )
@@ -377,8 +408,12 @@ def _change_chart(fig, result: Comparison) -> None:
     for j, name in enumerate(names):
         colour, _, _, hatch = _style(j + 1)
         c = result.change(result.outcome(name))
-        bars = ((-width / 2, c.yield_mm, colour), (width / 2, c.dry10_mm, "white"))
-        for offset, value, fill in bars:
+        bands = result.bands(result.plan_file.plans[name])
+        bars = (
+            (-width / 2, c.yield_mm, colour, bands.get("change_mm")),
+            (width / 2, c.dry10_mm, "white", bands.get("dry_year_change_mm")),
+        )
+        for offset, value, fill, band in bars:
             ax.bar(
                 x[j] + offset,
                 value,
@@ -388,6 +423,16 @@ def _change_chart(fig, result: Comparison) -> None:
                 hatch=hatch if fill == "white" else None,
                 linewidth=1.2,
             )
+            if band is not None:  # 5-95 % of the ensemble; the bar is the central figure
+                ax.errorbar(
+                    x[j] + offset + 0.3 * width,  # beside the bar's value label
+                    value,
+                    yerr=[[max(value - band[0], 0.0)], [max(band[2] - value, 0.0)]],
+                    fmt="none",
+                    ecolor="#222222",
+                    elinewidth=1.0,
+                    capsize=4,
+                )
             ax.annotate(
                 _signed(value),
                 (x[j] + offset, value),
@@ -461,7 +506,12 @@ def _charts(result: Comparison) -> list[tuple[str, str]]:
             _change_chart,
             (9.0, 3.3),
             "Change in mean annual yield against current (solid bars) and over the driest 10 % of "
-            "years (hatched bars); negative = less water.",
+            "years (hatched bars); negative = less water."
+            + (
+                " Error bars: 5th to 95th percentile over the parameter ensemble."
+                if result.ensemble is not None
+                else ""
+            ),
         ),
     ]
     out = []
@@ -535,7 +585,7 @@ def render_report(result: Comparison) -> str:
         f"<figcaption>{_esc(caption)}</figcaption></figure>"
         for caption, svg in _charts(result)
     )
-    dry = ", ".join(str(y) for y in sorted(result.dry_years))
+    dry = ", ".join(str(y) for y in result.dry_years)
     parts = [
         "<!DOCTYPE html>",
         '<html lang="en"><head><meta charset="utf-8">',
@@ -544,19 +594,22 @@ def render_report(result: Comparison) -> str:
         f"<style>{_CSS}</style></head><body>",
         f"<h1>{name}: water yield of land-use plans</h1>",
         f'<p class="meta">Catchment area {spec.area_km2:,.4g} km² · {len(years)} complete years '
-        f"{years[0]}–{years[-1]} · driest 10 % of years by rain: {dry}</p>",
+        f"{years[0]}–{years[-1]} · driest 10 % of years by rain, driest first: {dry}</p>",
         f'<p class="meta">Plan file: <code>{_esc(result.plan_file.source)}</code></p>',
         caution,
         "<h2>Headline figures</h2>",
         _headline_table(result),
         '<p class="note">Depths are mm per year over the whole catchment (1 mm over 1 km² = '
         f"1 ML). {_esc(YIELD_DEFINITION)} Changes are against <code>current</code>; negative "
-        "means less water. Q95 is the flow equalled or exceeded on 95 % of days. "
+        "means less water. Driest 10 % of years: the mean change over the years with the least "
+        "catchment rain; driest year: the change in the single year with the least rain "
+        f"({result.driest_year}). Q95 is the flow equalled or exceeded on 95 % of days. "
         "<i>Model vs Zhang</i> is how much more the daily model evaporates than the Zhang "
         f"curve for the same cover mix. {_esc(ZHANG_CURVE_SENTENCE)} For this model "
         f"{usual} is usual; \u26a0 marks a plan outside that range or more than "
         f"{CROSSCHECK_CHANGE_TOLERANCE_PCT:.0f} points away from current's offset (then the "
         "model and the curve disagree about the plan's change).</p>",
+        *_band_section(result),
         "<h2>Low flows</h2>",
         _low_flow_table(result),
         '<p class="note">7Q: the mean over the complete years of each year\'s lowest 7-day '

@@ -8,17 +8,27 @@ from __future__ import annotations
 import json
 import math
 import os
-import shutil
-import tempfile
-from collections.abc import Callable
+from collections.abc import Mapping
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from coveryield.comparison import CAUTION, YIELD_DEFINITION, Comparison
-from coveryield.errors import OutputError
+from coveryield.output_folder import (
+    MANIFEST_NAME,
+    OutputFolder,
+    check_output_folder,
+    write_new_folder,
+)
 from coveryield.physics.curves import CROSSCHECK_TYPICAL_OFFSET_PCT, ZHANG_CURVE_SENTENCE
 from coveryield.report_html import render_report
 
-#: Files written by :func:`write_outputs`, in order.
+__all__ = ["OUTPUT_FILES", "comparison_table", "output_files", "write_outputs", "write_new_folder"]
+
+if TYPE_CHECKING:
+    import pandas as pd
+
+#: Files written by :func:`write_outputs` in every run, in order (the folder's manifest comes on
+#: top).
 OUTPUT_FILES = (
     "annual.csv",
     "summary.json",
@@ -28,7 +38,15 @@ OUTPUT_FILES = (
     "tiles.csv",
     "README.txt",
     "report.html",
+    "daily_flow.csv",
 )
+#: Written with an ensemble only (``compare --ensemble N``).
+ENSEMBLE_FILE = "ensemble.csv"
+
+
+def output_files(*, ensemble: bool) -> tuple[str, ...]:
+    """Files :func:`write_outputs` writes: :data:`OUTPUT_FILES`, and ``ensemble.csv`` if asked."""
+    return OUTPUT_FILES + ((ENSEMBLE_FILE,) if ensemble else ())
 
 
 #: Decimals kept in the output files per unit suffix of a name: flows to 0.1 L/s, depths to
@@ -91,6 +109,11 @@ def _signed(value: float, digits: int = 1) -> str:
     return text.replace("-", "\u2212")
 
 
+def dry_years_text(result: Comparison) -> str:
+    """Format the dry years, driest first (the order of ``summary.json`` and the dashboard)."""
+    return ", ".join(str(y) for y in result.dry_years)
+
+
 def _plain(value: float | None, digits: int) -> str:
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return "n/a"
@@ -115,8 +138,8 @@ def comparison_table(result: Comparison) -> str:
     years = result.years
     lines = [
         f"{spec.name}: {spec.area_km2:g} km2, {len(years)} complete years "
-        f"{years[0]}-{years[-1]}; dry years (driest 10 % by rain): "
-        + ", ".join(str(y) for y in sorted(result.dry_years)),
+        f"{years[0]}-{years[-1]}; dry years (driest 10 % by rain, driest first): "
+        + dry_years_text(result),
         "",
     ]
     header = (
@@ -150,7 +173,8 @@ def comparison_table(result: Comparison) -> str:
     lines += [
         "",
         "change: against `current` (negative = less water). dry 10%: mean change over the dry "
-        "years. Q95: flow exceeded on 95 % of days.",
+        f"years. driest: change in the single driest year ({result.driest_year}). Q95: flow "
+        "exceeded on 95 % of days.",
         f"yield: {YIELD_DEFINITION}",
         "7Q: mean annual lowest 7-day mean flow. BFI: baseflow index (Lyne & Hollick filter, "
         "alpha 0.925, 3 passes).",
@@ -158,9 +182,10 @@ def comparison_table(result: Comparison) -> str:
         f"same cover mix; {low:+.0f} to {high:+.0f} % is usual for this model. * marks a plan "
         "outside that range or more than 6 points away from current's offset.",
         ZHANG_CURVE_SENTENCE,
-        "",
-        f"CAUTION: {CAUTION}",
     ]
+    if result.ensemble is not None:
+        lines += ["", *band_lines(result)]
+    lines += ["", f"CAUTION: {CAUTION}"]
     return "\n".join(lines)
 
 
@@ -211,6 +236,42 @@ def _low_flow_lines(result: Comparison) -> list[str]:
     return lines
 
 
+def band_text(central: float, low: float, high: float, digits: int = 0,
+              signed: bool = True) -> str:
+    """Format a figure with its band, e.g. ``−48 (−61 to −33)`` (the minus sign is U+2212)."""
+    def fmt(value: float) -> str:
+        return _signed(value, digits) if signed else f"{value:,.{digits}f}"
+
+    return f"{fmt(central)} ({fmt(low)} to {fmt(high)})"
+
+
+def band_lines(result: Comparison) -> list[str]:
+    """Lines giving each plan's headline figures with their 5-95 % ensemble band [mm/yr]."""
+    e = result.ensemble
+    lines = [
+        f"Bands: 5th to 95th percentile over {e.n_members} parameter sets (Latin hypercube, "
+        f"seed {e.seed}); central figures use the plan file's parameters. mm/yr.",
+        f"{'plan':<24}{'mean yield':>24}{'change':>24}{'change in dry years':>26}",
+    ]
+    for name in result.plan_names:
+        o = result.outcome(name)
+        b = result.bands(result.plan_file.plans[name])
+        mean = band_text(o.mean_yield_mm, *_ends(b["mean_yield_mm"]), signed=False)
+        row = f"{name[:23]:<24}{mean:>24}"
+        if name != "current":
+            c = result.change(o)
+            row += (f"{band_text(c.yield_mm, *_ends(b['change_mm'])):>24}"
+                    f"{band_text(c.dry10_mm, *_ends(b['dry_year_change_mm'])):>26}")
+        lines.append(row)
+    lines.append("A band shows how far the model's answer moves with its parameters; it is not a "
+                 "confidence interval for the real catchment.")
+    return lines
+
+
+def _ends(values: tuple[float, float, float]) -> tuple[float, float]:
+    return values[0], values[2]
+
+
 def _readme_text(result: Comparison) -> str:
     return "\n".join(
         [
@@ -226,6 +287,20 @@ def _readme_text(result: Comparison) -> str:
             " offset %",
             "tiles.csv         the same per zone and cover (tile), with mean rain and ET0",
             "report.html       one-page report with charts (self-contained; open in a browser)",
+            "daily_flow.csv    routed streamflow at the outlet per plan and day, m3/s",
+            f"{MANIFEST_NAME}  what coveryield wrote here, with checksums; --force replaces",
+            "                  only these files, and only while unchanged",
+        ]
+        + (
+            [
+                "ensemble.csv      one row per parameter set and plan: headline figures (mm/yr)",
+                "                  and the parameter values drawn; the bands in summary.json",
+                "                  (_p05, _p50, _p95) are percentiles over these rows",
+            ]
+            if result.ensemble is not None
+            else []
+        )
+        + [
             "",
             YIELD_DEFINITION,
             "Values are rounded to their unit's precision (flows 0.0001 m3/s, depths 0.01 mm).",
@@ -234,6 +309,18 @@ def _readme_text(result: Comparison) -> str:
             "",
         ]
     )
+
+
+def daily_flow_table(result: Comparison) -> pd.DataFrame:
+    """Routed streamflow at the outlet, long format: ``date``, ``plan``, ``flow_m3s`` [m3 s-1]."""
+    import pandas as pd
+
+    frames = [
+        pd.DataFrame({"date": result.tiles.dates.strftime("%Y-%m-%d"), "plan": name,
+                      "flow_m3s": result.outcome(name).flow_m3s.to_numpy()})
+        for name in result.plan_names
+    ]
+    return pd.concat(frames, ignore_index=True)
 
 
 def _write_all(result: Comparison, folder: Path) -> None:
@@ -247,70 +334,45 @@ def _write_all(result: Comparison, folder: Path) -> None:
     rounded_frame(result.cover_crosscheck_table()).to_csv(folder / "tiles.csv", index=False)
     (folder / "README.txt").write_text(_readme_text(result))
     (folder / "report.html").write_text(render_report(result), encoding="utf-8")
+    daily_flow_table(result).to_csv(folder / "daily_flow.csv", index=False, float_format="%.5f")
+    if result.ensemble is not None:
+        result.ensemble_table().to_csv(folder / ENSEMBLE_FILE, index=False, float_format="%.4f")
 
 
-def _staging_folder(target: Path) -> Path:
-    """Make a hidden temporary folder beside ``target`` (same file system: renames are atomic)."""
-    parent = target.resolve().parent
-    try:
-        parent.mkdir(parents=True, exist_ok=True)
-        return Path(tempfile.mkdtemp(prefix=f".{target.name}-", dir=parent))
-    except OSError as exc:
-        raise OutputError(f"{target}: cannot write here ({exc.strerror})") from None
+def _declared(target: OutputFolder | str | os.PathLike, force: bool, inputs,
+              *, ensemble: bool) -> OutputFolder:
+    if isinstance(target, OutputFolder):
+        return target
+    return check_output_folder(target, output_files(ensemble=ensemble), force=force,
+                               inputs=inputs, retire=() if ensemble else (ENSEMBLE_FILE,))
 
 
-def write_new_folder(target: str | os.PathLike, write: Callable[[Path], None]) -> Path:
-    """Create a NEW folder holding what ``write`` puts in it, all or nothing.
+def write_outputs(
+    result: Comparison,
+    out_dir: OutputFolder | str | os.PathLike,
+    *,
+    force: bool = False,
+    inputs: Mapping[str, str | os.PathLike] | None = None,
+) -> Path:
+    """Write the comparison tables and the report into a folder, all or nothing.
 
-    ``write`` fills a hidden temporary folder beside ``target``, which is then renamed; on any
-    failure the temporary folder is removed and ``target`` does not appear.
-
-    Parameters
-    ----------
-    target : path
-        Folder to create; must not exist.
-    write : callable
-        Called with the temporary folder's path.
-
-    Returns
-    -------
-    pathlib.Path
-        The new folder.
-
-    Raises
-    ------
-    coveryield.errors.OutputError
-        If ``target`` exists or cannot be written.
-    """
-    target = Path(target)
-    if target.exists():
-        raise OutputError(f"{target}: exists already; expected a new folder")
-    staging = _staging_folder(target)
-    try:
-        write(staging)
-        os.rename(staging, target)
-    except OSError as exc:
-        raise OutputError(f"{target}: writing failed ({exc}); nothing was written") from None
-    finally:
-        shutil.rmtree(staging, ignore_errors=True)
-    return target
-
-
-def write_outputs(result: Comparison, out_dir: str | os.PathLike, *, force: bool = False) -> Path:
-    """Write the comparison tables into a folder, all or nothing.
-
-    Every file is first written to a temporary folder beside ``out_dir``; only when all are
-    complete are they moved into place, so a failure never leaves half an output.
+    Every file is first written to a staging folder; only when all are complete are they moved
+    into place, so a failure never leaves half an output. The folder's manifest
+    (:data:`~coveryield.output_folder.MANIFEST_NAME`) lists what was written.
 
     Parameters
     ----------
     result : Comparison
         The compared plans.
-    out_dir : path
-        Folder to create (or an empty folder). An existing non-empty folder is refused unless
-        ``force`` is set, and even then only the files listed in :data:`OUTPUT_FILES` are replaced.
+    out_dir : OutputFolder or path
+        A folder checked with :func:`~coveryield.output_folder.check_output_folder` before the
+        work (the command line does this), or a path, checked here: a new or empty folder, or
+        with ``force`` one holding coveryield's own earlier outputs.
     force : bool
-        Replace earlier coveryield outputs in ``out_dir``.
+        Replace coveryield's own, unchanged earlier outputs (never an input, never a file
+        coveryield did not write). Ignored when ``out_dir`` is already checked.
+    inputs : mapping, optional
+        Role -> path of the run's inputs; default: the plan file and its climate file.
 
     Returns
     -------
@@ -320,25 +382,9 @@ def write_outputs(result: Comparison, out_dir: str | os.PathLike, *, force: bool
     Raises
     ------
     coveryield.errors.OutputError
-        If the folder holds other files, or cannot be written.
+        If the folder cannot take the outputs, or cannot be written.
     """
-    out = Path(out_dir)
-    if out.exists() and not out.is_dir():
-        raise OutputError(f"{out}: exists and is not a folder; expected a new or empty folder")
-    if out.is_dir() and any(out.iterdir()) and not force:
-        raise OutputError(
-            f"{out}: folder is not empty; choose a new folder, or pass --force to replace "
-            f"earlier coveryield outputs ({', '.join(OUTPUT_FILES)})"
-        )
-    if not out.exists():
-        return write_new_folder(out, lambda folder: _write_all(result, folder))
-    staging = _staging_folder(out)
-    try:
-        _write_all(result, staging)
-        for name in OUTPUT_FILES:
-            os.replace(staging / name, out / name)
-    except OSError as exc:
-        raise OutputError(f"{out}: writing outputs failed ({exc}); nothing was changed") from None
-    finally:
-        shutil.rmtree(staging, ignore_errors=True)
-    return out
+    if inputs is None:
+        inputs = result.plan_file.input_files()
+    target = _declared(out_dir, force, inputs, ensemble=result.ensemble is not None)
+    return target.write(lambda folder: _write_all(result, folder))

@@ -4,6 +4,9 @@ from __future__ import annotations
 
 import argparse
 import sys
+import warnings
+
+from coveryield.commands.out_option import add_out_arguments, checked_out_folder
 
 
 def add_parser(subparsers) -> None:
@@ -15,13 +18,23 @@ def add_parser(subparsers) -> None:
         "`current`: mean annual yield, dry years, seasons, low flows, curve cross-check.",
     )
     parser.add_argument("plan", metavar="PLAN.toml", help="plan file (TOML)")
+    add_out_arguments(parser, "report.html, annual.csv, summary.json and more tables")
     parser.add_argument(
-        "--out",
-        metavar="DIR",
-        help="write annual.csv, summary.json and more tables into DIR (a new or empty folder)",
+        "--no-cache",
+        action="store_true",
+        help="simulate the tiles even if the tile cache holds them, and store nothing there "
+        "(see `coveryield cache`)",
     )
     parser.add_argument(
-        "--force", action="store_true", help="replace earlier coveryield outputs in a non-empty DIR"
+        "--ensemble",
+        metavar="N",
+        type=int,
+        help="also run N parameter sets drawn by Latin hypercube from the covers' documented "
+        "ranges and give every headline a 5-95 %% band (100-200 is a good size)",
+    )
+    parser.add_argument(
+        "--seed", metavar="S", type=int, default=None,
+        help="seed of the ensemble's draws: the same seed gives the same bands (default: random)",
     )
     parser.set_defaults(run=run)
 
@@ -29,14 +42,51 @@ def add_parser(subparsers) -> None:
 def run(args: argparse.Namespace) -> int:
     """Compare the plans, print the table, optionally write the outputs."""
     from coveryield.comparison import compare
-    from coveryield.reports import comparison_table, write_outputs
+    from coveryield.errors import CoveryieldError
+    from coveryield.output_folder import MANIFEST_NAME
+    from coveryield.plans import load_plan
+    from coveryield.reports import ENSEMBLE_FILE, comparison_table, output_files, write_outputs
 
-    result = compare(args.plan, progress=sys.stderr.isatty())
+    if args.ensemble is not None and args.ensemble < 2:
+        raise CoveryieldError(f"--ensemble {args.ensemble}: expected at least 2 parameter sets "
+                              "(100-200 give stable 5-95 % bands)")
+    if args.seed is not None and args.ensemble is None:
+        raise CoveryieldError("--seed: only used with --ensemble N")
+    plan_file = load_plan(args.plan)
+    names = output_files(ensemble=args.ensemble is not None)
+    target = checked_out_folder(args, names, plan_file.input_files(),
+                                retire=() if args.ensemble else (ENSEMBLE_FILE,))
+    cache = None if args.no_cache else _tile_cache()
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        try:
+            result = compare(plan_file, progress=sys.stderr.isatty(), cache=cache,
+                             ensemble=args.ensemble, seed=args.seed)
+        finally:
+            print_warnings(caught)
     print(comparison_table(result))
-    if args.out:
-        out = write_outputs(result, args.out, force=args.force)
+    if target is not None:
+        out = write_outputs(result, target)
         print(
-            f"\nwrote {out}/ (annual.csv, summary.json, monthly.csv, flow_duration.csv, "
-            "crosscheck.csv, tiles.csv)"
+            f"\nwrote {len(names)} files to {out}/: {', '.join(names)} "
+            f"(each listed with its checksum in {MANIFEST_NAME})"
         )
     return 0
+
+
+def _tile_cache():
+    from coveryield.tile_cache import TileCache
+
+    return TileCache()
+
+
+def print_warnings(caught) -> None:
+    """Print recorded warnings as plain lines on stderr: ``note:`` for the tile cache's."""
+    seen = set()
+    for warning in caught:
+        text = str(warning.message)
+        if text in seen:
+            continue
+        seen.add(text)
+        label = "note" if warning.category.__name__ == "TileCacheWarning" else "warning"
+        print(f"{label}: {text}", file=sys.stderr)

@@ -70,12 +70,47 @@ def cover_lines(covers: dict) -> list[str]:
         )
     lines.append("(LAI): canopy store sized from the leaf area, 0.2 mm per unit LAI "
                  "(Dickinson 1984); water_depth_m applies to open water only.")
+    for n in names:
+        growth = covers[n].growth
+        if growth is None:
+            continue
+        rotation = (
+            f"felled at {growth.rotation_years} yr" if growth.rotation_years else "not felled"
+        )
+        start = growth.start or "the cover replaced if grass, else pasture"
+        lines.append(
+            f"{n}: grows after planting along a Chapman-Richards curve, 95 % grown at "
+            f"{growth.maturity_years:g} yr (p {growth.shape:g}), {rotation}, starts from {start}"
+        )
     lines.append("")
     lines.append("Typical ranges and sources:")
     for name in SHOWN:
         unit, typical, source = PARAMETER_INFO[name]
         lines.append(f"  {name} [{unit}]: {typical}. Source: {source}.")
+    lines.append(f"  growth: {GROWTH_SOURCE}")
+    return lines + ensemble_range_lines()
+
+
+def ensemble_range_lines() -> list[str]:
+    """List the numeric ranges `compare --ensemble` draws from, per built-in cover, with sources."""
+    from coveryield.covers import PARAMETER_INFO, PARAMETER_RANGES
+
+    lines = ["", "Ensemble ranges (compare --ensemble N draws uniformly within them; a derived "
+             "cover takes its base's range relative to the base's value):"]
+    for cover, ranges in PARAMETER_RANGES.items():
+        for name, spread in ranges.items():
+            unit = PARAMETER_INFO[name][0]
+            lines.append(f"  {cover}.{name} [{unit}]: {spread.low:g} to {spread.high:g}. "
+                         f"Source: {spread.source}.")
     return lines
+
+
+#: Where the built-in forest's growth comes from (see coveryield.covers.DEFAULT_GROWTH).
+GROWTH_SOURCE = (
+    "maturity age 20 yr within the 8-25 years to a new equilibrium of Brown et al. (2013) and "
+    "the 20+ years of growing losses of Farley et al. (2005) (both abstracts); shape p 1.5 our "
+    "choice (small change in the first two years, Brown et al. 2005)."
+)
 
 
 def run(args: argparse.Namespace) -> int:

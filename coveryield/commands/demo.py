@@ -7,7 +7,8 @@ import argparse
 
 def add_parser(subparsers) -> None:
     """Register the ``demo`` command."""
-    from coveryield.serve import DEFAULT_PORT
+    from coveryield.commands.serve import add_page_arguments
+    from coveryield.serve import DEFAULT_MAX_VIEWERS, DEFAULT_PORT
 
     parser = subparsers.add_parser(
         "demo",
@@ -21,6 +22,7 @@ def add_parser(subparsers) -> None:
                              "instead of read-only")
     parser.add_argument("--port", type=int, default=DEFAULT_PORT,
                         help=f"port on 127.0.0.1 (default {DEFAULT_PORT})")
+    add_page_arguments(parser, DEFAULT_MAX_VIEWERS)
     parser.set_defaults(run=run)
 
 
@@ -31,10 +33,15 @@ def run(args: argparse.Namespace) -> int:
     from coveryield.reports import comparison_table
 
     plan = demo_plan_path()
+    if not args.no_serve:  # say what is missing before the comparison, not after
+        from coveryield.serve import check_dashboard_extras
+
+        check_dashboard_extras()
     print(comparison_table(compare(plan)), flush=True)
     if args.no_serve:
         return 0
     from coveryield.serve import serve
 
     print(flush=True)
-    return serve(plan, port=args.port, read_only=not args.manager)
+    return serve(plan, port=args.port, read_only=not args.manager, start_plan=args.start_plan,
+                 max_viewers=args.max_viewers)

@@ -7,7 +7,7 @@ import argparse
 
 def add_parser(subparsers) -> None:
     """Register the ``serve`` command."""
-    from coveryield.serve import DEFAULT_PORT
+    from coveryield.serve import DEFAULT_MAX_VIEWERS, DEFAULT_PORT
 
     parser = subparsers.add_parser(
         "serve",
@@ -22,7 +22,18 @@ def add_parser(subparsers) -> None:
                         help=f"port on 127.0.0.1 (default {DEFAULT_PORT})")
     parser.add_argument("--read-only", action="store_true",
                         help="stakeholder mode: no saving of plans, no exports")
+    add_page_arguments(parser, DEFAULT_MAX_VIEWERS)
     parser.set_defaults(run=run)
+
+
+def add_page_arguments(parser: argparse.ArgumentParser, default_max_viewers: int) -> None:
+    """Add ``--start-plan`` and ``--max-viewers`` (shared with the ``demo`` command)."""
+    parser.add_argument("--start-plan", metavar="NAME", default=None,
+                        help="plan the page opens on (default: the first plan after `current`)")
+    parser.add_argument("--max-viewers", type=int, default=default_max_viewers, metavar="N",
+                        help="most page views at once; each holds a Python process of a few "
+                             f"hundred MB; one more gets a 'busy' page (default "
+                             f"{default_max_viewers})")
 
 
 def plan_or_demo(plan: str | None):
@@ -38,4 +49,5 @@ def run(args: argparse.Namespace) -> int:
     """Serve until interrupted; return the exit status."""
     from coveryield.serve import serve
 
-    return serve(plan_or_demo(args.plan), port=args.port, read_only=args.read_only)
+    return serve(plan_or_demo(args.plan), port=args.port, read_only=args.read_only,
+                 start_plan=args.start_plan, max_viewers=args.max_viewers)

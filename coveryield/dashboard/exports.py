@@ -15,7 +15,7 @@ from typing import Any
 
 from coveryield.comparison import CAUTION
 from coveryield.errors import OutputError, PlanFileError
-from coveryield.reports import write_new_folder
+from coveryield.output_folder import write_new_folder
 
 PLAN_NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_-]{0,39}")
 
@@ -97,8 +97,23 @@ def summary_record(state: Any, plan_label: str) -> dict[str, Any]:
             "crosscheck_flag": bool(outcome.crosscheck_flag),
             "crosscheck_note": outcome.crosscheck_note,
         },
+        **_band_record(state),
         "caution": CAUTION,
     }
+
+
+def _band_record(state: Any) -> dict[str, Any]:
+    """Bands of the edited plan's headlines, when the page has estimated them."""
+    bands = getattr(state, "bands", None)
+    if not bands:
+        return {}
+    ensemble = state.comparison.ensemble
+    return {"bands_mm_per_yr": {
+        "percentiles": [5, 50, 95],
+        "members": ensemble.n_members,
+        "seed": ensemble.seed,
+        **{key: list(values) for key, values in bands.items()},
+    }}
 
 
 def export_tables(state: Any, plan_path: Path, label: str = "edited",

@@ -31,9 +31,10 @@ SHARE_RULE = (
 )
 ALL_ZONES_RULE = (
     "With \u201call zones\u201d chosen, a slider shows the cover's share of the whole catchment "
-    "(zones weighted by area) and a move changes every zone in the same proportion: lowering a "
-    "cover by a third lowers it by a third in each zone; raising it takes the same fraction of the "
-    "free area in each zone."
+    "(zones weighted by area), and a move scales the cover by the same factor in every zone that "
+    "has it: raising forest by a third raises it by a third in each zone with forest (as far as "
+    "the other covers there can give). A zone without the cover keeps none; to add a cover to a "
+    "zone, choose that zone."
 )
 
 
@@ -119,6 +120,28 @@ def rebalance_zone(
     return new
 
 
+def _scale_factor(
+    x: Mapping[str, float], cap: Mapping[str, float], w: Mapping[str, float], wanted: float
+) -> float:
+    r"""Factor :math:`k \ge 0` with :math:`\sum_z w_z \min(k x_z, c_z) = ` ``wanted``.
+
+    Zones whose cap binds are fixed at their cap one after the other (at most one pass per
+    zone); ``wanted`` beyond every cap gives the largest factor any zone needs. Common practice,
+    no source.
+    """
+    active = {z for z in x if x[z] > 0.0}
+    fixed = 0.0
+    k = 0.0
+    while active:
+        k = max((wanted - fixed) / sum(w[z] * x[z] for z in active), 0.0)
+        capped = {z for z in active if k * x[z] > cap[z]}
+        if not capped:
+            return k
+        fixed += sum(w[z] * cap[z] for z in capped)
+        active -= capped
+    return max((cap[z] / x[z] for z in x if x[z] > 0.0), default=0.0)
+
+
 def rebalance(
     shares_by_zone: Mapping[str, Mapping[str, float]],
     zone_weights: Mapping[str, float],
@@ -126,7 +149,7 @@ def rebalance(
     target: float,
     held: Iterable[str] = (),
 ) -> dict[str, dict[str, float]]:
-    r"""Move a cover's area-weighted share over several zones, each zone by the same proportion.
+    r"""Move a cover's area-weighted share over several zones, scaling it alike in each zone.
 
     Parameters
     ----------
@@ -137,7 +160,8 @@ def rebalance(
     cover : str
         The cover being moved.
     target : float
-        Wanted area-weighted share of ``cover`` over these zones [-].
+        Wanted area-weighted share of ``cover`` over these zones [-]; clipped to what the zones
+        that have the cover can reach.
     held : iterable of str
         Covers that keep their share in every zone.
 
@@ -148,37 +172,35 @@ def rebalance(
 
     Notes
     -----
-    Lowering from mean :math:`m` to :math:`t` scales the cover in each zone by
-    :math:`1 - (m - t)/m`; raising it gives each zone :math:`x_z + f R_z` with
-    :math:`f = (t - m) / \\bar R` (:math:`R_z`: share of the free covers in zone z, :math:`\\bar R`
-    its area-weighted mean). With one zone this is :func:`rebalance_zone`. Common practice, no
-    source.
+    Every zone that has the cover gets :math:`\min(k x_z, x_z + R_z)`, one factor :math:`k`
+    for all (:math:`x_z`: the cover's share, :math:`R_z`: the share of the covers neither moved
+    nor held in zone z), with :math:`k` chosen so the area-weighted mean reaches the target. A
+    zone without the cover keeps none (:data:`ALL_ZONES_RULE`). With one zone this is
+    :func:`rebalance_zone`. Common practice, no source.
     """
     held = set(held) - {cover}
+    if len(shares_by_zone) == 1:
+        ((zone, shares),) = shares_by_zone.items()
+        return {zone: rebalance_zone(shares, cover, target, held)}
     total_w = sum(zone_weights[z] for z in shares_by_zone) or 1.0
     weights = {z: zone_weights[z] / total_w for z in shares_by_zone}
-    movable = {
-        z: s for z, s in shares_by_zone.items() if any(c != cover and c not in held for c in s)
-    }
     x = {z: float(s.get(cover, 0.0)) for z, s in shares_by_zone.items()}
-    mean = sum(weights[z] * x[z] for z in shares_by_zone)
     room = {z: sum(float(v) for c, v in s.items() if c != cover and c not in held)
-            for z, s in movable.items()}
-    targets: dict[str, float] = {}
-    if len(shares_by_zone) == 1:
-        targets = {z: target for z in movable}
-    elif target > mean:
-        mean_room = sum(weights[z] * room[z] for z in movable)
-        fraction = min((target - mean) / mean_room, 1.0) if mean_room > 0 else 0.0
-        targets = {z: x[z] + fraction * room[z] for z in movable}
-    elif target < mean:
-        mean_movable = sum(weights[z] * x[z] for z in movable)
-        cut = min((mean - target) / mean_movable, 1.0) if mean_movable > 0 else 0.0
-        targets = {z: x[z] * (1.0 - cut) for z in movable}
+            for z, s in shares_by_zone.items()}
+    movable = {z for z in shares_by_zone if x[z] > 0.0 and room[z] + x[z] > 0.0}
+    fixed = sum(weights[z] * x[z] for z in shares_by_zone if z not in movable)
+    k = _scale_factor({z: x[z] for z in movable}, {z: x[z] + room[z] for z in movable},
+                      weights, float(target) - fixed)
     result = {z: dict(s) for z, s in shares_by_zone.items()}
-    for zone, zone_target in targets.items():
-        result[zone] = rebalance_zone(shares_by_zone[zone], cover, zone_target, held)
+    for zone in movable:
+        result[zone] = rebalance_zone(shares_by_zone[zone], cover, min(k * x[zone],
+                                                                       x[zone] + room[zone]), held)
     return result
+
+
+def default_start_plan(plan_names: list[str]) -> str:
+    """Return the plan the page starts from: the first after ``current``, else ``current``."""
+    return plan_names[1] if len(plan_names) > 1 else plan_names[0]
 
 
 class DashboardState(HasTraits):
@@ -188,8 +210,9 @@ class DashboardState(HasTraits):
     ----------
     comparison : coveryield.comparison.Comparison
         The plans compared, tiles simulated once.
-    plan_name : str
-        Plan to start from (``current`` by default).
+    plan_name : str, optional
+        Plan to start from (default: :func:`default_start_plan`, the first plan after
+        ``current``, so the page opens on a plan's own figures rather than on zero changes).
 
     Attributes
     ----------
@@ -204,6 +227,10 @@ class DashboardState(HasTraits):
     outcome, change
         :class:`PlanOutcome` of the edited plan and its :class:`PlanChange` against ``current``;
         ``outcome`` is assigned last, so observing it sees ``shares`` and ``change`` up to date.
+    bands : dict
+        With a parameter ensemble: ``mean_yield_mm``, ``change_mm``, ``dry_year_change_mm`` ->
+        (p05, p50, p95) of the edited plan [mm yr-1], a weighted sum per member (no daily
+        loop); empty without one. Assigned with ``outcome``.
     error : str
         Short message about the last failed action; empty when all is well.
     """
@@ -213,10 +240,11 @@ class DashboardState(HasTraits):
     shares = Dict()
     held = List(Unicode())
     change = AnyTrait(allow_none=True)
+    bands = Dict()
     outcome = AnyTrait(allow_none=True)
     error = Unicode("")
 
-    def __init__(self, comparison: Any, plan_name: str = "current") -> None:
+    def __init__(self, comparison: Any, plan_name: str | None = None) -> None:
         super().__init__()
         self.comparison = comparison
         self.plan_file = comparison.plan_file
@@ -224,6 +252,8 @@ class DashboardState(HasTraits):
         self.zone_names = [z.name for z in self.plan_file.zones]
         self.zone_weights = {z.name: float(z.area_share) for z in self.plan_file.zones}
         self.cover_names = list(comparison.cover_names)
+        if plan_name is None:
+            plan_name = default_start_plan(self.plan_names)
         if plan_name not in self.plan_names:
             raise KeyError(f"plan {plan_name!r} is not in the plan file")
         if plan_name != self.plan_name:
@@ -235,6 +265,22 @@ class DashboardState(HasTraits):
     def plan_names(self) -> list[str]:
         """Plans in the file, ``current`` first."""
         return list(self.comparison.plan_names)
+
+    @property
+    def edited_label(self) -> str:
+        """Name of the plan on screen: the plan started from, ``, edited`` once changed."""
+        if self.is_edited:
+            return f"{self.plan_name}, edited"
+        if self.plan_name == self.plan_names[0]:
+            return f"{self.plan_name} (start of an edit)"
+        return self.plan_name
+
+    @property
+    def edited_colour(self) -> str:
+        """Colour of the plan on screen: that of the plan started from (see coveryield.palette)."""
+        from coveryield.palette import edited_colour
+
+        return edited_colour(self.plan_names, self.plan_name)
 
     @property
     def zone_choices(self) -> list[str]:
@@ -299,6 +345,11 @@ class DashboardState(HasTraits):
         if cover in self.held:
             return self.displayed_shares()[cover]
         chosen = {z: self.shares[z] for z in self.edited_zones}
+        absent = not any(s[cover] > 0.0 for s in chosen.values())
+        if len(chosen) > 1 and absent and share > self.displayed_shares()[cover]:
+            self.error = (f"{cover} is in none of the zones chosen: choose a zone to add "
+                          f"{cover} there")
+            return self.displayed_shares()[cover]
         moved = rebalance(chosen, self.zone_weights, cover, share, self.held)
         new_shares = {z: dict(self.shares[z]) for z in self.zone_names}
         new_shares.update(moved)
@@ -312,12 +363,32 @@ class DashboardState(HasTraits):
         self.held = [*held, cover] if hold else held
 
     def _publish(self, shares: dict[str, dict[str, float]], outcome: Any) -> None:
-        """Assign new shares and their outcome, notifying observers once the three agree."""
+        """Assign new shares and their outcome, notifying observers once they all agree."""
         change = self.comparison.change(outcome)
+        bands = self.comparison.bands(engine_shares(shares)) if self.has_ensemble else {}
         with self.hold_trait_notifications():
             self.shares = shares
             self.change = change
+            self.bands = bands
             self.outcome = outcome
+
+    @property
+    def has_ensemble(self) -> bool:
+        """Whether the comparison carries a parameter ensemble (bands on the headlines)."""
+        return getattr(self.comparison, "ensemble", None) is not None
+
+    def attach_ensemble(self, ensemble: Any) -> None:
+        """Give the comparison a parameter ensemble and show the bands of the edited shares.
+
+        Parameters
+        ----------
+        ensemble : coveryield.uncertainty.ensemble.EnsembleResults
+            Every member's tiles, simulated once for the same tiles as the comparison.
+        """
+        if tuple(ensemble.tiles) != tuple(self.comparison.tiles.tiles):
+            raise ValueError("the ensemble was simulated for other tiles than this comparison")
+        self.comparison.ensemble = ensemble
+        self._publish(self.shares, self.outcome)
 
 
 def engine_shares(shares: Mapping[str, Mapping[str, float]]) -> dict[str, dict[str, float]]:

@@ -1,13 +1,17 @@
-"""Widget views of a :class:`~coveryield.dashboard.state.DashboardState`: controls, figures.
+"""Widget views of a :class:`~coveryield.dashboard.state.DashboardState`: the controls.
 
-Each view builds its widgets once, binds them to the state with ``observe``, and afterwards only
-assigns new data (marks inside ``hold_sync()``), never rebuilding a figure. Every callback runs
-through :class:`Guard`: an exception becomes a short message in the error area (CSS class
+Also what every view shares (:class:`Guard`, :func:`signed`, :class:`ErrorArea`).
+
+The headline cards live in :mod:`coveryield.dashboard.cards`, the charts in
+:mod:`coveryield.dashboard.charts`. Each view builds its widgets once, binds them to the state with
+``observe``, and afterwards only assigns new values, never rebuilding a widget. Every callback
+runs through :class:`Guard`: an exception becomes a short message in the error area (CSS class
 ``cy-error``) and its traceback goes to the server log, so nothing fails silently.
 
 CSS classes for tests: ``cy-share-<cover>`` on each share slider, ``cy-hold-<cover>`` on each hold
-checkbox, ``cy-yield-change`` on the change in mean annual yield, ``cy-error`` on the error area,
-``cy-status`` on the manager's message line.
+checkbox, ``cy-card-<key>`` on each card's main figure (``cy-yield-change`` on the change in mean
+annual yield), ``cy-chart-<key>`` on each chart, ``cy-error`` on the error area, ``cy-status`` on
+the manager's message line.
 """
 
 from __future__ import annotations
@@ -20,19 +24,12 @@ import traceback
 from collections.abc import Callable
 from typing import Any
 
-import bqplot
 import ipywidgets as widgets
-import numpy as np
 
 from coveryield.dashboard import palette
 from coveryield.dashboard.state import ALL_ZONES, ALL_ZONES_RULE, SHARE_RULE, DashboardState
 from coveryield.errors import CoveryieldError
-from coveryield.physics.curves import ZHANG_CURVE_SENTENCE
 
-MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
-#: Exceedance percentages at which the flow duration curves are drawn [%].
-FDC_GRID_PCT = np.concatenate(
-    [np.linspace(0.1, 1.0, 10), np.linspace(1.5, 99.0, 196), [99.5, 99.9]])
 MINUS = "\u2212"
 
 
@@ -230,234 +227,6 @@ class ShareControls:
 
     def _held_changed(self, _change: dict) -> None:
         self.sync()
-
-
-def _card(title: str) -> tuple[widgets.VBox, widgets.HTML, widgets.HTML]:
-    heading = widgets.HTML(
-        f'<div style="font-size:12px;color:{palette.MUTED};text-transform:uppercase;'
-        f'letter-spacing:0.04em">{title}</div>'
-    )
-    main = widgets.HTML()
-    detail = widgets.HTML()
-    box = widgets.VBox(
-        [heading, main, detail],
-        layout=widgets.Layout(border="1px solid #D5D9DE", padding="6px 12px", margin="0 0 8px 0",
-                              width="100%"),
-    )
-    return box, main, detail
-
-
-class Headline:
-    """Figures that change with every move: mean yield, change in dry years, evaporation check."""
-
-    def __init__(self, state: DashboardState, guard: Guard) -> None:
-        self.state = state
-        yield_box, self.yield_main, self.yield_detail = _card("Mean annual yield, edited plan")
-        change_box, self.change_main, self.change_detail = _card("Change against current")
-        dry_box, self.dry_main, self.dry_detail = _card("Driest 10 % of years")
-        evap_box, self.evap_main, self.evap_detail = _card("Evaporation cross-check")
-        self.change_main.add_class("cy-yield-change")
-        self.widget = widgets.VBox([yield_box, change_box, dry_box, evap_box],
-                                   layout=widgets.Layout(flex="1 1 380px", max_width="640px",
-                                                         margin="0 0 0 16px"))
-        state.observe(guard("show the headline figures")(self.update), names="outcome")
-        self.update()
-
-    def update(self, _change: dict | None = None) -> None:
-        """Write the edited plan's figures (and its change against ``current``)."""
-        edited, base, change = self.state.outcome, self.state.baseline, self.state.change
-        big = f'style="font-size:22px;font-weight:600;color:{palette.EDITED}"'
-        small = f'style="font-size:12px;color:{palette.MUTED}"'
-        self.yield_main.value = (
-            f"<span {big}>{edited.mean_yield_mm:,.1f} mm/yr</span>"
-            f" <span {small}>({edited.mean_yield_ml:,.0f} ML/yr)</span>"
-        )
-        self.yield_detail.value = (
-            f"<span {small}>current: {base.mean_yield_mm:,.1f} mm/yr "
-            f"({base.mean_yield_ml:,.0f} ML/yr)</span>"
-        )
-        self.change_main.value = f'<span {big}>{signed(change.yield_mm, "mm/yr")}</span>'
-        self.change_detail.value = (
-            f"<span {small}>{signed(change.yield_pct, '%')}, "
-            f"{signed(change.yield_ml, 'ML/yr', 0)}; low flow Q95 "
-            f"{signed(change.q95_pct, '%')}</span>"
-        )
-        years = ", ".join(str(y) for y in self.state.comparison.dry_years)
-        self.dry_main.value = f'<span {big}>{signed(change.dry10_mm, "mm/yr")}</span>'
-        self.dry_detail.value = (
-            f"<span {small}>mean change in {years}; driest year "
-            f"{signed(change.driest_year_mm, 'mm')}</span>"
-        )
-        note = html.escape(str(edited.crosscheck_note))
-        flag = (f'<br><span style="color:{palette.ALERT}">\u26a0 {note}</span>'
-                if edited.crosscheck_flag else f"<br><span {small}>{note}</span>")
-        self.evap_main.value = (
-            f'<span style="font-size:15px">daily model <b>{edited.model_evap_mm:,.0f}</b> mm/yr'
-            f" \u00b7 Zhang curve <b>{edited.zhang_evap_mm:,.0f}</b> mm/yr</span>"
-        )
-        self.evap_detail.value = (
-            f"<span {small}>Fu's form {edited.fu_evap_mm:,.0f} mm/yr; mean annual evaporation "
-            f"of this cover mix. {html.escape(ZHANG_CURVE_SENTENCE)}</span>{flag}"
-        )
-
-
-def _figure(title: str, marks: list, axes: list) -> bqplot.Figure:
-    return bqplot.Figure(
-        marks=marks, axes=axes, title=title, legend_location="top-right",
-        fig_margin={"top": 50, "bottom": 55, "left": 70, "right": 20},
-        layout=widgets.Layout(width="100%", height="330px"),
-        title_style={"font-size": "15px"},
-        legend_style={"fill": "white", "stroke": "#D5D9DE"},
-    )
-
-
-class Charts:
-    """Four bqplot figures comparing the edited plan with ``current``, updated by data only."""
-
-    def __init__(self, state: DashboardState, guard: Guard) -> None:
-        self.state = state
-        plan_colours = [palette.CURRENT, palette.EDITED]
-        plan_labels = ["current", "edited plan"]
-        years = np.asarray(state.comparison.years, dtype=float)
-
-        sx, sy = bqplot.LinearScale(), bqplot.LinearScale()
-        self.annual = bqplot.Lines(
-            x=years, y=np.zeros((2, len(years))), scales={"x": sx, "y": sy},
-            colors=plan_colours, labels=plan_labels, stroke_width=2, marker="circle",
-            marker_size=18,
-        )
-        self.annual_figure = _figure("Yield year by year", [self.annual], [
-            bqplot.Axis(scale=sx, label="Year", tick_format="d"),
-            bqplot.Axis(scale=sy, orientation="vertical", label="Yield (mm/yr)", tick_format=",d",
-                        label_offset="50px"),
-        ])
-
-        mx, my = bqplot.OrdinalScale(), bqplot.LinearScale(min=0.0, max=1.0)
-        self.monthly_scale = my
-        self.monthly = bqplot.Bars(
-            x=list(MONTHS), y=np.zeros((2, 12)), scales={"x": mx, "y": my}, type="grouped",
-            colors=plan_colours, labels=plan_labels, padding=0.2,
-        )
-        self.monthly_figure = _figure("Mean monthly yield", [self.monthly], [
-            bqplot.Axis(scale=mx, label="Month"),
-            bqplot.Axis(scale=my, orientation="vertical", label="Yield (mm/month)",
-                        label_offset="50px"),
-        ])
-
-        fx, fy = bqplot.LinearScale(min=0.0, max=100.0), bqplot.LogScale()
-        self.fdc = bqplot.Lines(
-            x=FDC_GRID_PCT, y=np.ones((2, len(FDC_GRID_PCT))), scales={"x": fx, "y": fy},
-            colors=plan_colours, labels=plan_labels, stroke_width=2,
-        )
-        self.fdc_figure = _figure("Flow duration curve", [self.fdc], [
-            bqplot.Axis(scale=fx, label="Time the flow is equalled or exceeded (%)"),
-            bqplot.Axis(scale=fy, orientation="vertical", label="Streamflow (m\u00b3/s)",
-                        tick_format=".2g", label_offset="50px"),
-        ])
-
-        zx, zy = bqplot.OrdinalScale(), bqplot.LinearScale(min=0.0, max=100.0)
-        cover_colours = palette.cover_colours(state.cover_names)
-        self.zone_labels = [f"{zone} {tag}" for zone in state.zone_names
-                            for tag in ("(current)", "(edited)")]
-        self.makeup = bqplot.Bars(
-            x=self.zone_labels, y=np.zeros((len(state.cover_names), len(self.zone_labels))),
-            scales={"x": zx, "y": zy}, type="stacked", padding=0.25,
-            colors=[cover_colours[c] for c in state.cover_names], labels=state.cover_names,
-            stroke="white", stroke_width=0.5,
-        )
-        self.makeup_figure = _figure("Cover make-up of each zone", [self.makeup], [
-            bqplot.Axis(scale=zx, label="Zone"),
-            bqplot.Axis(scale=zy, orientation="vertical", label="Share of zone (%)",
-                        label_offset="50px"),
-        ])
-
-        self.figures = [self.annual_figure, self.monthly_figure, self.fdc_figure,
-                        self.makeup_figure]
-        self.marks = [self.annual, self.monthly, self.fdc, self.makeup]
-        plan_legend = legend(dict(zip(plan_labels, plan_colours, strict=True)), line=True)
-        cover_legend = legend(cover_colours)
-        monthly_note = widgets.HTML(
-            f'<div class="cy-yield-note" style="color:{palette.MUTED};font-size:12px">Monthly '
-            "yield includes the open-water balance (rain on ponds and lakes minus their "
-            "evaporation), so a month can be negative when the water loses more than the land "
-            "yields.</div>"
-        )
-        self.widget = widgets.GridBox(
-            [widgets.VBox([figure, plan_legend if figure is not self.makeup_figure
-                           else cover_legend]
-                          + ([monthly_note] if figure is self.monthly_figure else []))
-             for figure in self.figures],
-            layout=widgets.Layout(grid_template_columns="repeat(2, minmax(0, 1fr))",
-                                  grid_gap="4px 12px", width="100%"),
-        )
-        state.observe(guard("redraw the charts")(self.update), names="outcome")
-        self.update()
-
-    def update(self, _change: dict | None = None) -> None:
-        """Assign the edited plan's and ``current``'s data to the marks (no figure rebuilt)."""
-        edited, base = self.state.outcome, self.state.baseline
-        with self.annual.hold_sync():
-            self.annual.y = np.vstack([
-                base.annual["yield_mm"].to_numpy(float), edited.annual["yield_mm"].to_numpy(float)
-            ])
-        monthly = np.vstack([_months(base.monthly_yield_mm), _months(edited.monthly_yield_mm)])
-        with self.monthly_scale.hold_sync():
-            # fixed domain set from the data (the scale's own domain did not follow the data)
-            self.monthly_scale.max = _nice_ceiling(np.nanmax(monthly, initial=0.0) * 1.05)
-            low = np.nanmin(monthly, initial=0.0)
-            self.monthly_scale.min = -_nice_ceiling(-low * 1.05) if low < 0.0 else 0.0
-        with self.monthly.hold_sync():
-            self.monthly.y = monthly
-        with self.fdc.hold_sync():
-            self.fdc.y = np.vstack([_fdc_on_grid(base.fdc), _fdc_on_grid(edited.fdc)])
-        with self.makeup.hold_sync():
-            self.makeup.y = self._makeup()
-
-    def _makeup(self) -> np.ndarray:
-        current = self.state.plan_shares("current")
-        columns = []
-        for zone in self.state.zone_names:
-            columns.append([100.0 * current[zone][c] for c in self.state.cover_names])
-            columns.append([100.0 * self.state.shares[zone][c] for c in self.state.cover_names])
-        return np.asarray(columns, dtype=float).T
-
-
-def legend(colours: dict[str, str], line: bool = False) -> widgets.HTML:
-    """Build a one-line legend for under a chart: a swatch (or short line) and name per entry."""
-    shape = "width:18px;height:3px;margin-bottom:4px" if line else "width:11px;height:11px"
-    items = "".join(
-        f'<span style="margin:0 14px 0 0;white-space:nowrap"><span style="display:inline-block;'
-        f'{shape};background:{colour};vertical-align:middle;margin-right:5px"></span>'
-        f"{html.escape(name)}</span>"
-        for name, colour in colours.items()
-    )
-    return widgets.HTML(f'<div style="text-align:center;font-size:13px;color:{palette.INK};'
-                        f'margin-top:-6px">{items}</div>')
-
-
-def _nice_ceiling(value: float) -> float:
-    """Return the next round number above ``value`` (1 to 8 times a power of ten) [-]."""
-    if not np.isfinite(value) or value <= 0.0:
-        return 1.0
-    power = 10.0 ** np.floor(np.log10(value))
-    for step in (1.0, 1.2, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0):
-        if step * power >= value:
-            return float(step * power)
-    return float(10.0 * power)
-
-
-def _months(monthly: Any) -> np.ndarray:
-    """Mean monthly yield in calendar order Jan..Dec [mm/month]."""
-    return np.asarray([float(monthly.get(m, np.nan)) for m in range(1, 13)], dtype=float)
-
-
-def _fdc_on_grid(fdc: Any) -> np.ndarray:
-    """Flow duration curve read at :data:`FDC_GRID_PCT`; zero flows become NaN (log axis) [m3/s]."""
-    order = np.argsort(fdc["exceedance_pct"].to_numpy(float))
-    pct = fdc["exceedance_pct"].to_numpy(float)[order]
-    flow = fdc["flow_m3s"].to_numpy(float)[order]
-    on_grid = np.interp(FDC_GRID_PCT, pct, flow)
-    return np.where(on_grid > 0.0, on_grid, np.nan)
 
 
 class ManagerControls:

@@ -63,11 +63,21 @@ class Served:
         return _snapshot(self.plan_dir)
 
 
-@pytest.fixture(scope="session")
-def served(tmp_path_factory):
-    if not CHROMIUM.exists():
-        pytest.skip(f"{CHROMIUM} is absent")
-    root = tmp_path_factory.mktemp("served")
+#: Logged once the warm kernel has run the dashboard (coveryield.voila_process.WARM_READY).
+WARM = "warm kernel ready:"
+
+
+def wait_for_log(server: Served, text: str, timeout_s: float = 120.0) -> None:
+    """Wait until ``text`` appears in the server's log (fail with the log's end if it does not)."""
+    deadline = time.monotonic() + timeout_s
+    while text not in server.log():
+        if server.process.poll() is not None or time.monotonic() > deadline:
+            pytest.fail(f"{text!r} not in the log:\n" + server.log()[-3000:])
+        time.sleep(0.2)
+
+
+def start_server(root: Path, *extra: str) -> Served:
+    """Serve a copy of the demo catchment read-only on a free port; return once it answers."""
     plan_dir = root / "catchment"
     shutil.copytree(REPO / "demo_data", plan_dir,
                     ignore=shutil.ignore_patterns("__pycache__", "*.py"))
@@ -83,7 +93,7 @@ def served(tmp_path_factory):
     with open(log_path, "wb") as log:
         process = subprocess.Popen(
             [sys.executable, "-m", "coveryield.cli", "serve", str(plan_dir / "plans.toml"),
-             "--port", str(port), "--read-only"],
+             "--port", str(port), "--read-only", *extra],
             cwd=root, env=env, stdout=log, stderr=subprocess.STDOUT,
         )
     url = f"http://127.0.0.1:{port}"
@@ -99,16 +109,31 @@ def served(tmp_path_factory):
             process.kill()
             pytest.fail("coveryield serve did not come up:\n" + log_path.read_text()[-3000:])
         time.sleep(0.3)
-    yield Served(url, log_path, plan_dir, process, before)
-    process.send_signal(signal.SIGTERM)
+    return Served(url, log_path, plan_dir, process, before)
+
+
+def stop_server(server: Served) -> None:
+    """SIGTERM, then check it stopped cleanly and said so."""
+    server.process.send_signal(signal.SIGTERM)
     try:
-        process.wait(timeout=30)
+        server.process.wait(timeout=30)
     except subprocess.TimeoutExpired:
-        process.kill()
-        process.wait()
+        server.process.kill()
+        server.process.wait()
         pytest.fail("coveryield serve did not stop within 30 s of SIGTERM")
-    assert process.returncode == 0, log_path.read_text()[-3000:]
-    assert "coveryield: stopped" in log_path.read_text()
+    assert server.process.returncode == 0, server.log()[-3000:]
+    assert "coveryield: stopped" in server.log()
+
+
+@pytest.fixture(scope="session")
+def served(tmp_path_factory):
+    """The read-only dashboard, its warm kernel ready (room for the session's page views)."""
+    if not CHROMIUM.exists():
+        pytest.skip(f"{CHROMIUM} is absent")
+    server = start_server(tmp_path_factory.mktemp("served"), "--max-viewers", "16")
+    wait_for_log(server, WARM)
+    yield server
+    stop_server(server)
 
 
 @pytest.fixture(scope="session")

@@ -31,6 +31,19 @@ def test_lyne_hollick_one_pass_by_hand():
     np.testing.assert_allclose(lyne_hollick_baseflow(q, a, passes=1), q - [0.0, f1, f2, f3])
 
 
+def test_python_and_compiled_filter_passes_agree():
+    # the plain-Python pass (used while the compiler runtime is not loaded, e.g. a comparison
+    # read from the tile cache) and its compiled twin are the same code: same numbers
+    from coveryield import flow_metrics
+
+    rng = np.random.default_rng(5)
+    flow = np.exp(rng.normal(0.0, 1.0, 4000))
+    for reverse in (False, True):
+        python = flow_metrics._lyne_hollick_pass_python(flow, 0.925, reverse)
+        compiled = flow_metrics._compiled_pass()(flow, 0.925, reverse)
+        np.testing.assert_allclose(python, compiled, rtol=1e-13, atol=0.0)
+
+
 def test_baseflow_index_properties():
     # a steady flow is all baseflow; a flashy series has a smaller index than a smooth one;
     # baseflow never exceeds the flow (design of the filter, Lyne & Hollick 1979)

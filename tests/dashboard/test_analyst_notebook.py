@@ -37,5 +37,6 @@ def test_analyst_notebook_runs(tmp_path):
                      for o in outputs)
     assert "Driest 10 % of years" in text
     assert "mean yield" in text
+    assert "once mature" in text  # the years-after-planting section ran
     last = nb.cells[-1].outputs
     assert any("application/vnd.jupyter.widget-view+json" in o.get("data", {}) for o in last)

@@ -25,7 +25,7 @@ def _zone_sum_pct(dash, zone):
 def test_page_has_the_hooks_tests_and_people_rely_on(dashboard):
     for cover, slider in dashboard.controls.sliders.items():
         assert f"cy-share-{cover}" in slider._dom_classes
-    assert "cy-yield-change" in dashboard.headline.change_main._dom_classes
+    assert "cy-yield-change" in dashboard.headline.card("change").main._dom_classes
     assert "cy-error" in dashboard.errors.widget._dom_classes
     assert dashboard.errors.widget.value == ""
     assert dashboard.manager is None  # read-only: no saving, no exports
@@ -43,8 +43,11 @@ def _all_widgets(widget):
         yield from _all_widgets(child)
 
 
-def test_at_start_the_change_is_zero_with_unit(dashboard):
-    assert re.search(r"\u00b10\.0 mm/yr", dashboard.headline.change_main.value)
+def test_starting_from_current_the_change_is_zero_with_unit(demo_comparison):
+    from coveryield.dashboard import Dashboard
+
+    dash = Dashboard(demo_comparison, read_only=True, plan_name="current")
+    assert re.search(r"\u00b10\.0 mm/yr", dash.headline.card("change").main.value)
 
 
 def test_moving_forest_up_in_one_zone_rebalances_and_lowers_the_yield(dashboard):
@@ -52,21 +55,24 @@ def test_moving_forest_up_in_one_zone_rebalances_and_lowers_the_yield(dashboard)
     # no source; the demo catchment is built so that planting the upper zone lowers the yield.
     dash = dashboard
     dash.controls.zone_picker.value = "upper"
-    before_y = np.array(dash.charts.annual.y, copy=True)
-    before_makeup = np.array(dash.charts.makeup.y, copy=True)
-    dash.controls.sliders["forest"].value = 85.0
-    assert dash.state.shares["upper"]["forest"] == pytest.approx(0.85)
+    annual = dash.charts.chart("annual")
+    before_y = np.array(annual.edited.y, copy=True)
+    before_current = np.array(annual.current.y, copy=True)
+    before_makeup = np.array(dash.charts.chart("makeup").bars.y, copy=True)
+    dash.controls.sliders["forest"].value = 95.0
+    assert dash.state.shares["upper"]["forest"] == pytest.approx(0.95)
     for zone in dash.state.zone_names:
         assert _zone_sum_pct(dash, zone) == pytest.approx(100.0, abs=1e-9)
     shown = sum(s.value for s in dash.controls.sliders.values())
     assert shown == pytest.approx(100.0, abs=1e-6)
-    change = _number(dash.headline.change_main.value)
+    change_text = dash.headline.card("change").main.value
+    change = _number(change_text)
     assert change < 0
-    assert "\u2212" in dash.headline.change_main.value
+    assert "\u2212" in change_text
     assert change == pytest.approx(dash.state.change.yield_mm, abs=0.05)
-    assert not np.allclose(dash.charts.annual.y[1], before_y[1])
-    np.testing.assert_allclose(dash.charts.annual.y[0], before_y[0])  # current unchanged
-    assert not np.allclose(dash.charts.makeup.y, before_makeup)
+    assert not np.allclose(annual.edited.y, before_y)
+    np.testing.assert_allclose(annual.current.y, before_current)  # current unchanged
+    assert not np.allclose(dash.charts.chart("makeup").bars.y, before_makeup)
     assert dash.errors.widget.value == ""
 
 
@@ -88,10 +94,10 @@ def test_held_cover_keeps_its_share(dashboard):
 
 def test_reset_returns_to_the_chosen_plan(dashboard):
     dash = dashboard
-    dash.controls.plan_picker.value = "plant-upper"
-    planned = dash.state.plan_shares("plant-upper")
+    dash.controls.plan_picker.value = "plant-upper-and-middle"
+    planned = dash.state.plan_shares("plant-upper-and-middle")
     assert dash.state.shares == planned
-    assert _number(dash.headline.change_main.value) < 0
+    assert _number(dash.headline.card("change").main.value) < 0
     dash.controls.zone_picker.value = "middle"
     dash.controls.sliders["forest"].value = 60.0
     assert dash.state.shares != planned
@@ -176,7 +182,7 @@ def test_marks_are_updated_in_place_not_rebuilt(dashboard):
 def test_fdc_axis_is_logarithmic_and_axes_carry_units(dashboard):
     import bqplot
 
-    assert isinstance(dashboard.charts.fdc.scales["y"], bqplot.LogScale)
+    assert isinstance(dashboard.charts.chart("fdc").edited.scales["y"], bqplot.LogScale)
     labels = [a.label for f in dashboard.charts.figures for a in f.axes]
     for unit in ("(mm/yr)", "(mm/month)", "(m\u00b3/s)", "(%)"):
         assert any(unit in label for label in labels), unit
@@ -198,17 +204,22 @@ def test_show_dashboard_reads_plan_and_read_only_from_the_environment(demo_plan,
 def test_low_flow_card_and_monthly_streamflow_follow_the_edit(dashboard):
     # issue 10: 7Q, baseflow index, days below the threshold and monthly streamflow on the page
     dash = dashboard
-    assert "7Q" in dash.low_flows.main.value
-    assert "baseflow index" in dash.low_flows.detail.value
-    assert "d/yr below 0.1" in dash.low_flows.detail.value  # the demo's low_flow_m3s
-    before = np.array(dash.low_flows.monthly_flow.y, copy=True)
-    np.testing.assert_allclose(before[1], dash.state.outcome.monthly_flow_m3s.to_numpy())
+    card = dash.headline.cards["low-flows"]
+    chart = dash.charts.chart("monthly-flow")
+    assert "7Q" in card.main.value
+    assert "baseflow index" in card.detail.value
+    assert "d/yr below 0.1" in card.detail.value  # the demo's low_flow_m3s
+    current_before = np.array(chart.current.y, copy=True)
+    np.testing.assert_allclose(np.array(chart.edited.y),
+                               dash.state.outcome.monthly_flow_m3s.to_numpy())
+    np.testing.assert_allclose(current_before, dash.state.baseline.monthly_flow_m3s.to_numpy())
+    edited_before = np.array(chart.edited.y, copy=True)
     dash.controls.zone_picker.value = "upper"
-    dash.controls.sliders["forest"].value = 85.0
-    after = np.array(dash.low_flows.monthly_flow.y)
-    np.testing.assert_allclose(after[0], before[0])  # current unchanged
-    assert after[1].mean() < before[1].mean()  # planting lowers the flow (Farley et al. 2005)
-    assert "\u2212" in dash.low_flows.main.value
+    dash.controls.sliders["forest"].value = min(100.0, dash.controls.sliders["forest"].value + 30)
+    np.testing.assert_allclose(np.array(chart.current.y), current_before)  # current unchanged
+    # planting lowers the flow (Farley et al. 2005)
+    assert np.array(chart.edited.y).mean() < edited_before.mean()
+    assert "\u2212" in card.main.value
 
 
 def test_page_says_what_yield_and_the_curve_are(dashboard):

@@ -60,3 +60,8 @@ def test_export_tables_writes_a_complete_new_folder(manager, tmp_path):
     assert summary["mean_yield_mm"] == pytest.approx(annual["yield_mm"].mean(), rel=1e-6)
     assert "licensed hydrological practice" in summary["caution"]
     assert not [p for p in tmp_path.iterdir() if p.name.startswith(".export-")]
+    # the export lists what it wrote, so a later --force knows these files are coveryield's
+    from coveryield.output_folder import MANIFEST_NAME
+
+    listed = json.loads((folders[0] / MANIFEST_NAME).read_text())["files"]
+    assert set(listed) == {"annual.csv", "summary.json"}

@@ -1,7 +1,8 @@
 """The share rule of the dashboard: shares sum to 100 %, held covers keep theirs (pure Python).
 
-The rule (proportional rebalancing of the covers not held) is common practice, no source; these
-tests check its stated properties, not numbers from elsewhere.
+The rule (proportional rebalancing of the covers not held; over all zones, one scale factor for
+the zones that have the cover) is common practice, no source; these tests check its stated
+properties, not numbers from elsewhere.
 """
 
 from __future__ import annotations
@@ -44,9 +45,29 @@ def test_all_zones_moves_the_area_weighted_share_by_the_same_proportion():
     lowered = rebalance(shares, weights, "forest", 0.15)  # from 0.30: halved in each zone
     assert lowered["a"]["forest"] == pytest.approx(0.2)
     assert lowered["b"]["forest"] == pytest.approx(0.1)
-    raised = rebalance(shares, weights, "forest", 0.65)  # half the free share of each zone
-    assert raised["a"]["forest"] == pytest.approx(0.7)
-    assert raised["b"]["forest"] == pytest.approx(0.6)
+    raised = rebalance(shares, weights, "forest", 0.39)  # from 0.30: x1.3 in each zone
+    assert raised["a"]["forest"] == pytest.approx(0.52)
+    assert raised["b"]["forest"] == pytest.approx(0.26)
+
+
+def test_all_zones_never_puts_a_cover_into_a_zone_without_it():
+    # issue 12, item 5: raising forest over all zones once planted a zone that had none
+    shares = {"a": {"forest": 0.4, "pasture": 0.6}, "b": {"forest": 0.0, "pasture": 1.0}}
+    raised = rebalance(shares, {"a": 0.5, "b": 0.5}, "forest", 0.3)
+    assert raised["b"] == shares["b"]
+    assert raised["a"]["forest"] == pytest.approx(0.6)  # all of the move in zone a
+    # beyond what zone a can take: zone a is full, zone b still has none
+    full = rebalance(shares, {"a": 0.5, "b": 0.5}, "forest", 0.9)
+    assert full["a"]["forest"] == pytest.approx(1.0)
+    assert full["b"]["forest"] == 0.0
+
+
+def test_all_zones_fills_a_capped_zone_and_scales_the_rest():
+    shares = {"a": {"forest": 0.8, "pasture": 0.2}, "b": {"forest": 0.1, "pasture": 0.9}}
+    raised = rebalance(shares, {"a": 0.5, "b": 0.5}, "forest", 0.65)
+    # k = 1.3 would need 1.04 in zone a: a is capped at 1.0, zone b takes the rest (0.30)
+    assert raised["a"]["forest"] == pytest.approx(1.0)
+    assert raised["b"]["forest"] == pytest.approx(0.3)
 
 
 share_sets = st.lists(st.integers(0, 1000), min_size=4, max_size=4).filter(lambda v: sum(v) > 0)
@@ -74,5 +95,10 @@ def test_property_all_zones_keeps_every_zone_valid(raw_a, raw_b, target, cover):
         assert sum(zone.values()) == pytest.approx(1.0, abs=1e-9)
         assert min(zone.values()) >= 0.0
     mean = 0.3 * new["a"][cover] + 0.7 * new["b"][cover]
-    # with nothing held every target is reachable, up to the 0.1 % grid of each zone
-    assert mean == pytest.approx(target, abs=1.5 * SHARE_QUANTUM)
+    for zone in ("a", "b"):  # a zone without the cover keeps none
+        if shares[zone][cover] == 0.0:
+            assert new[zone][cover] == 0.0
+    # with nothing held, every target the zones having the cover can reach is reached, up to
+    # the 0.1 % grid of each zone
+    reachable = sum(w for z, w in (("a", 0.3), ("b", 0.7)) if shares[z][cover] > 0.0)
+    assert mean == pytest.approx(min(target, reachable), abs=1.5 * SHARE_QUANTUM)

@@ -48,6 +48,66 @@ def test_prepare_uses_private_folders_and_env(demo_plan):
     assert not setup.root.exists()
 
 
+def test_one_warm_kernel_a_cap_and_quiet_disconnects(demo_plan):
+    setup = serve.prepare(demo_plan, port=8899, read_only=True, max_viewers=5,
+                          start_plan="plant-upper", base_env={"PATH": "/usr/bin"})
+    try:
+        config = json.loads((setup.root / "config" / "voila.json").read_text())
+        vc = config["VoilaConfiguration"]
+        assert vc["preheat_kernel"] is True
+        assert vc["default_pool_size"] == 1
+        assert config["Voila"]["kernel_websocket_connection_class"] == (
+            "coveryield.voila_process.QuietDisconnectConnection")
+        assert setup.command[1:4] == ["-m", "coveryield.voila_process",
+                                      "--coveryield-max-kernels=5"]
+        assert "--VoilaConfiguration.preheat_kernel=True" in setup.command
+        assert setup.env["COVERYIELD_START_PLAN"] == "plant-upper"
+    finally:
+        setup.cleanup()
+
+
+def test_the_page_template_asks_no_other_host(demo_plan):
+    # issue 12, item 6: Voila's lab page asked a public CDN for two icon style sheets
+    setup = serve.prepare(demo_plan, port=8899, base_env={"PATH": "/usr/bin"})
+    try:
+        config = json.loads((setup.root / "config" / "voila.json").read_text())
+        assert config["VoilaConfiguration"]["template"] == serve.TEMPLATE_NAME
+        folder = setup.root / "data" / "voila" / "templates" / serve.TEMPLATE_NAME
+        names = sorted(p.name for p in folder.iterdir())
+        assert names == ["conf.json", "error.html", "index.html.j2"]
+        for path in folder.iterdir():
+            text = path.read_text()
+            for other_host in ("http://", "https://", "//cdn"):
+                assert other_host not in text
+        assert json.loads((folder / "conf.json").read_text()) == {"base_template": "lab"}
+    finally:
+        setup.cleanup()
+
+
+def test_an_unknown_start_plan_is_a_user_error(demo_plan):
+    with pytest.raises(CoveryieldError, match="plant-upper"):
+        serve._check_start_plan(demo_plan, "no-such-plan")
+
+
+@pytest.mark.parametrize("command", [["serve"], ["demo"]])
+def test_serve_without_the_dashboard_extras_says_what_to_install(command):
+    # issue 11: `coveryield serve` without the extras printed "No module named voila" from
+    # inside Voila; now one line naming the package and the install command, exit status 2
+    import subprocess
+    import sys
+
+    hide = ("import sys; sys.modules['voila'] = None; from coveryield.cli import main; "
+            f"sys.exit(main({command!r} + ['--port', '1']))")
+    proc = subprocess.run([sys.executable, "-c", hide], capture_output=True, text=True,
+                          timeout=120)
+    assert proc.returncode == 2, proc.stderr
+    lines = proc.stderr.strip().splitlines()
+    assert len(lines) == 1, proc.stderr
+    assert "'voila'" in lines[0]
+    assert 'pip install "coveryield[dashboard]"' in lines[0]
+    assert proc.stdout == ""  # refused before any work (the demo's comparison included)
+
+
 def test_port_in_use_is_a_user_error():
     import socket
 
@@ -72,3 +132,5 @@ def test_cli_registers_serve_and_demo():
     args = parser.parse_args(["demo", "--no-serve"])
     assert args.no_serve
     assert callable(args.run)
+    args = parser.parse_args(["serve", "--start-plan", "plant-upper", "--max-viewers", "3"])
+    assert (args.start_plan, args.max_viewers) == ("plant-upper", 3)

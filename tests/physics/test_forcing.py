@@ -217,9 +217,81 @@ def test_negative_rates_are_clipped_to_zero():
 
 @pytest.mark.parametrize("method", ["fao56", "asce-short", "asce-tall"])
 def test_compiled_and_numpy_paths_of_reference_et_agree(climate, monkeypatch, method):
-    # the record length only picks the implementation, never the answer (design property)
+    # the path only picks the implementation, never the answer (design property)
+    monkeypatch.setattr(forcing, "_compiled_path", lambda n_days: False)
     numpy_path = forcing.reference_et(climate, method)
-    monkeypatch.setattr(forcing, "COMPILED_MIN_DAYS", 1)
+    monkeypatch.setattr(forcing, "_compiled_path", lambda n_days: True)
     compiled = forcing.reference_et(climate, method)
     np.testing.assert_allclose(compiled.to_numpy(), numpy_path.to_numpy(), rtol=0, atol=1e-9)
     pd.testing.assert_index_equal(compiled.index, numpy_path.index)
+
+
+def _paths_of(climate, cover, monkeypatch):
+    """cover_evaporation through the numpy chain and through the compiled kernel."""
+    monkeypatch.setattr(forcing, "_compiled_path", lambda n_days: False)
+    numpy_path = forcing.cover_evaporation(climate, cover)
+    monkeypatch.setattr(forcing, "_compiled_path", lambda n_days: True)
+    compiled = forcing.cover_evaporation(climate, cover)
+    return numpy_path, compiled
+
+
+@pytest.mark.parametrize(
+    "cover",
+    [
+        *BUILTIN_COVERS.values(),
+        derive_cover("tall-open", "forest", {"height_m": 45.0, "rs_s_per_m": 400.0}),
+        derive_cover("shrub", "forest", {"height_m": 1.5, "albedo": 0.2, "rs_s_per_m": 0.0}),
+        derive_cover("short-grass", "pasture", {"height_m": 0.05, "rs_s_per_m": 5000.0}),
+    ],
+    ids=lambda c: c.name,
+)
+@pytest.mark.parametrize(
+    ("lat", "elev", "wind_height"), [(47.0, 300.0, 10.0), (-70.0, 2500.0, 2.0)]
+)
+def test_compiled_and_numpy_paths_of_cover_evaporation_agree(
+    monkeypatch, cover, lat, elev, wind_height
+):
+    # the fused dry/wet canopy kernel implements the same FAO-56 eqs. 3, 4, 37-40 as the numpy
+    # chain (design property); calm days, a missing day and polar night included
+    daily = _daily(n_days=1500, seed=7, start="1967-02-01")
+    daily.iloc[10, daily.columns.get_loc("wind_ms")] = 0.0
+    daily.iloc[20, daily.columns.get_loc("tmax_c")] = np.nan
+    clim = stand_in_climate(daily, lat, elev, wind_height_m=wind_height)
+    numpy_path, compiled = _paths_of(clim, cover, monkeypatch)
+    pd.testing.assert_index_equal(compiled.index, numpy_path.index)
+    assert list(compiled.columns) == list(numpy_path.columns)
+    np.testing.assert_allclose(compiled.to_numpy(), numpy_path.to_numpy(), rtol=0, atol=1e-9)
+    assert compiled["dry_mm"].isna().iloc[20] == numpy_path["dry_mm"].isna().iloc[20]
+
+
+def test_compiled_canopy_rates_fall_back_to_exact_exp(monkeypatch):
+    # temperatures far outside any climate take math.exp in the kernel: still the numpy numbers
+    daily = _daily(n_days=30, seed=2)
+    daily.iloc[3, daily.columns.get_loc("tmin_c")] = -160.0
+    daily.iloc[3, daily.columns.get_loc("tmax_c")] = -150.0
+    clim = stand_in_climate(daily, LAT, ELEV)
+    numpy_path, compiled = _paths_of(clim, BUILTIN_COVERS["forest"], monkeypatch)
+    np.testing.assert_allclose(compiled.to_numpy(), numpy_path.to_numpy(), rtol=1e-12, atol=1e-9)
+
+
+def test_cover_evaporation_columns_are_contiguous_float64(climate):
+    # the engine reads each rate as one column: the frame holds one Fortran-ordered block
+    frame = forcing.cover_evaporation(climate, BUILTIN_COVERS["pasture"])
+    assert (frame.dtypes == np.float64).all()
+    assert frame["dry_mm"].to_numpy().flags.c_contiguous
+
+
+@pytest.mark.parametrize("name", ["forest", "pasture"])
+def test_compiled_cover_rates_take_a_given_et0_as_the_numpy_chain_does(monkeypatch, name):
+    # ETo computed inside the one-pass kernel or passed in: the same three rates (FAO-56 eqs.
+    # 6, 71, 72 in both paths; design property), to 1e-9 mm/d
+    clim = stand_in_climate(_daily(n_days=800, seed=11), LAT, ELEV)
+    et0 = forcing.reference_et(clim)
+    monkeypatch.setattr(forcing, "_compiled_path", lambda n_days: False)
+    numpy_path = forcing.cover_evaporation(clim, BUILTIN_COVERS[name], et0_mm=et0)
+    monkeypatch.setattr(forcing, "_compiled_path", lambda n_days: True)
+    given = forcing.cover_evaporation(clim, BUILTIN_COVERS[name], et0_mm=et0)
+    inside = forcing.cover_evaporation(clim, BUILTIN_COVERS[name])
+    np.testing.assert_allclose(given.to_numpy(), numpy_path.to_numpy(), rtol=0, atol=1e-9)
+    np.testing.assert_allclose(inside.to_numpy(), given.to_numpy(), rtol=0, atol=1e-9)
+    assert (given["soil_mm"] > 0).any()
