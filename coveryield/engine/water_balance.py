@@ -302,26 +302,35 @@ def retention_mm(curve_number):
 
 
 def _kernel_parameters(params: TileParameters) -> np.ndarray:
-    """Derive the per-tile kernel parameters, in the kernel's blocked layout."""
+    """Derive the per-tile kernel parameters, in the kernel's blocked layout.
+
+    An open-water tile gets TAW, 1 / ((1 − p)·TAW) and TEW 0 and the retention
+    ``kernels.WATER_RETENTION_MM``, so that the kernel's land terms are exactly 0 on it but
+    drainage = rain, which the kernel books as open water (see ``kernels.tile_day``).
+    """
     water = params.is_water
+    land = ~water
     taw = np.where(water, 1.0, params.root_zone_capacity_mm)
-    cn = np.where(water, 100.0, params.curve_number)
-    lai = params.reference_lai()
-    with np.errstate(divide="ignore", invalid="ignore"):
-        per_lai = np.where(lai > 0, params.canopy_capacity_mm / lai, 0.0)
+    cn = params.curve_number
+    low, low_slope, high, high_slope = kernels.retention_lines(
+        retention_mm(dry_curve_number(cn)), retention_mm(cn), retention_mm(wet_curve_number(cn)),
+        taw,
+    )
     rows = [None] * kernels.N_PAR
-    rows[kernels.P_CAPACITY] = np.where(water, kernels.WATER_CAPACITY, per_lai)
-    rows[kernels.P_INV_RAIN_RATE] = 1.0 / params.rain_rate_mm_per_h
-    rows[kernels.P_RETENTION_DRY] = retention_mm(dry_curve_number(cn))
-    rows[kernels.P_RETENTION_AVERAGE] = retention_mm(cn)
-    rows[kernels.P_RETENTION_WET] = retention_mm(wet_curve_number(cn))
-    rows[kernels.P_TAW] = taw
-    rows[kernels.P_INV_TAW] = 1.0 / taw
-    rows[kernels.P_INV_READILY_SPAN] = 1.0 / ((1.0 - params.depletion_fraction) * taw)
-    rows[kernels.P_TEW] = params.total_evaporable_mm
+    rows[kernels.P_INV_RAIN_DAY] = 1.0 / (24.0 * params.rain_rate_mm_per_h)
+    rows[kernels.P_RETENTION_LOW] = np.where(land, low, kernels.WATER_RETENTION_MM)
+    rows[kernels.P_RETENTION_LOW_SLOPE] = np.where(land, low_slope, 0.0)
+    rows[kernels.P_RETENTION_HIGH] = np.where(land, high, kernels.WATER_RETENTION_MM)
+    rows[kernels.P_RETENTION_HIGH_SLOPE] = np.where(land, high_slope, 0.0)
+    rows[kernels.P_TAW] = np.where(land, taw, 0.0)
+    rows[kernels.P_INV_READILY_SPAN] = np.where(
+        land, 1.0 / ((1.0 - params.depletion_fraction) * taw), 0.0
+    )
+    rows[kernels.P_TEW] = np.where(land, params.total_evaporable_mm, 0.0)
     rows[kernels.P_INV_STAGE2_SPAN] = 1.0 / (
         params.total_evaporable_mm - params.readily_evaporable_mm
     )
+    rows[kernels.P_WATER] = water.astype(np.float64)
     return kernels.pack_blocks(rows)
 
 
@@ -358,11 +367,17 @@ def _check_year_index(year_index, n_days) -> np.ndarray:
 
 
 def _check_forcing(arrays, n_tiles):
-    """Return the forcing as C-contiguous float64 arrays of one shape (n_days, n_tiles)."""
+    """Return the forcing as C-contiguous arrays of one shape (n_days, n_tiles) and one dtype.
+
+    Four float32 arrays stay float32 (the kernel widens each value as it reads it, and half the
+    bytes stream through memory); anything else becomes float64.
+    """
     shape = np.shape(arrays[0])
+    single = all(getattr(value, "dtype", None) == np.float32 for value in arrays)
+    dtype = np.float32 if single else np.float64
     out = []
     for name, value in zip(_FORCING_NAMES, arrays, strict=False):
-        array = np.ascontiguousarray(value, dtype=np.float64)
+        array = np.ascontiguousarray(value, dtype=dtype)
         if array.ndim != 2 or array.shape != shape or array.shape[1] != n_tiles:
             raise ValueError(
                 f"{name}: shape {array.shape}, expected (n_days, {n_tiles}) like rain_mm "
@@ -375,7 +390,7 @@ def _check_forcing(arrays, n_tiles):
 
 
 def _leaf_area(lai, params: TileParameters, shape):
-    """The kernel's leaf-area rows and their step: one constant row (step 0) or one per day."""
+    """The leaf-area rows: one constant row (step 0) or one per day (step 1) [m² m⁻²]."""
     if lai is None:
         return np.ascontiguousarray(params.reference_lai().reshape(1, -1)), 0
     array = np.ascontiguousarray(lai, dtype=np.float64)
@@ -387,18 +402,67 @@ def _leaf_area(lai, params: TileParameters, shape):
     return array, 1
 
 
-def _cover_rows(leaf_area, params: TileParameters) -> np.ndarray:
-    """Canopy cover fraction for the kernel's leaf-area rows: 1 − exp(−k·LAI), 1 if closed."""
-    if params.leaf_area_index is None:
-        return np.ones_like(leaf_area)
-    cover = np.empty_like(leaf_area)
-    kernels.cover_fraction_rows(leaf_area, params.extinction_coefficient, cover)
-    return cover
+#: Days of canopy rows computed at a time when the leaf area changes by day (whole years are
+#: added until a chunk holds at least this many days): a reused buffer of a year or so stays in
+#: cache and is not paged in afresh, where rows for the whole record would cost more to write
+#: and read than the day loop itself.
+CANOPY_CHUNK_DAYS = 366
 
 
-def _raise_first_bad_value(arrays, bad_tiles):
-    """Raise ValueError naming the first negative or non-finite forcing value."""
-    for name, array in zip(_FORCING_NAMES, arrays, strict=False):
+def _canopy_chunks(leaf_area, lai_step, years, params: TileParameters):
+    """Yield (start, stop, canopy rows) for the kernel: one chunk, or whole years with daily LAI.
+
+    Chunks end on year ends, so the kernel opens and closes each year inside one call.
+    """
+    n_days = years.shape[0]
+    if lai_step == 0:
+        yield 0, n_days, _canopy_rows(leaf_area, params)
+        return
+    year_starts = np.flatnonzero(np.diff(years)) + 1
+    bounds = [0]
+    for start in year_starts:
+        if start - bounds[-1] >= CANOPY_CHUNK_DAYS:
+            bounds.append(int(start))
+    bounds.append(n_days)
+    n_tiles = leaf_area.shape[1]
+    buffer = np.empty(kernels.N_CANOPY * max(np.diff(bounds)) * n_tiles)
+    for start, stop in zip(bounds[:-1], bounds[1:], strict=False):
+        size = kernels.N_CANOPY * (stop - start) * n_tiles
+        rows = buffer[:size].reshape(kernels.N_CANOPY, stop - start, n_tiles)  # C-contiguous
+        _canopy_rows(leaf_area[start:stop], params, out=rows, full_lai=leaf_area)
+        yield start, stop, rows
+
+
+def _canopy_rows(leaf_area, params: TileParameters, out=None, full_lai=None) -> np.ndarray:
+    """Capacity, cover and 1 / exposed share for the leaf-area rows (``kernels.canopy_rows``).
+
+    ``out`` (shape (N_CANOPY, *leaf_area.shape)) is filled if given; ``full_lai`` is the whole
+    record of which ``leaf_area`` is a part, searched for the first invalid value.
+
+    Raises
+    ------
+    ValueError
+        Naming the first negative or non-finite leaf area (day, tile, value).
+    """
+    lai = params.reference_lai()
+    with np.errstate(divide="ignore", invalid="ignore"):
+        per_lai = np.where(lai > 0, params.canopy_capacity_mm / lai, 0.0)
+    land = (~params.is_water).astype(np.float64)
+    if out is None:
+        out = np.empty((kernels.N_CANOPY, *leaf_area.shape))
+    closed = params.leaf_area_index is None
+    invalid = kernels.canopy_rows(
+        leaf_area, per_lai * land, params.extinction_coefficient, closed, land, out
+    )
+    if invalid:
+        whole = leaf_area if full_lai is None else full_lai
+        _raise_first_bad_value({"lai": whole}, np.arange(whole.shape[1]))
+    return out
+
+
+def _raise_first_bad_value(named_arrays, bad_tiles):
+    """Raise ValueError naming the first negative or non-finite value in the given tiles."""
+    for name, array in named_arrays.items():
         columns = array[:, bad_tiles]
         bad = ~((columns >= 0) & np.isfinite(columns))
         if bad.any():
@@ -506,7 +570,9 @@ def simulate_tiles(
     Parameters
     ----------
     rain_mm : array_like, shape (n_days, n_tiles)
-        Gross rain on each tile [mm d⁻¹].
+        Gross rain on each tile [mm d⁻¹]. When all four forcing arrays are float32 they are
+        used as they are (half the bytes to read; each value is widened to float64 and all
+        arithmetic and sums are float64); otherwise all four are taken as float64.
     wet_mm : array_like, shape (n_days, n_tiles)
         Evaporation of a fully wet canopy (Penman–Monteith with rs = 0) per unit of
         canopy-covered area; for a water tile, open-water evaporation [mm d⁻¹].
@@ -553,8 +619,10 @@ def simulate_tiles(
 
     Notes
     -----
-    Inputs that are C-contiguous float64 are used without a copy. The physics of a day is
-    :func:`coveryield.engine.kernels.tile_day`; see the module docstring for the order.
+    Inputs that are C-contiguous float64 (or all four float32) are used without a copy. With a
+    daily ``lai`` the canopy rows are computed a year at a time (:data:`CANOPY_CHUNK_DAYS`).
+    The physics of a day is :func:`coveryield.engine.kernels.tile_day`; see the module
+    docstring for the order.
     """
     forcing = _check_forcing((rain_mm, wet_mm, dry_mm, soil_mm), params.n_tiles)
     n_days, n_tiles = forcing[0].shape
@@ -578,22 +646,27 @@ def simulate_tiles(
         raise ValueError("out: given with keep_daily_yield=False (expected None)")
     if keep_daily or keep_daily_drainage:
         drainage = np.empty((n_days, n_tiles), dtype=daily_yield.dtype)
-    cover = _cover_rows(leaf_area, params)
-    inputs = (*forcing, leaf_area, cover, lai_step, years, par, state, annual)
     if keep_daily:
         daily = np.empty((kernels.N_DAILY, n_days, n_tiles))
-        kernels.run_tiles_daily(*inputs, daily_yield, drainage, daily)
-    elif keep_daily_drainage:
-        kernels.run_tiles_routed(*inputs, daily_yield, drainage)
-    elif keep_daily_yield:
-        kernels.run_tiles(*inputs, daily_yield)
-    else:
-        kernels.run_tiles_annual(*inputs)
+    for start, stop, canopy in _canopy_chunks(leaf_area, lai_step, years, params):
+        days = slice(start, stop)
+        inputs = (*(f[days] for f in forcing), canopy, lai_step, years[days], par, state, annual)
+        if keep_daily:
+            kernels.run_tiles_daily(*inputs, daily_yield[days], drainage[days], daily[:, days])
+        elif keep_daily_drainage:
+            kernels.run_tiles_routed(*inputs, daily_yield[days], drainage[days])
+        elif keep_daily_yield:
+            kernels.run_tiles(*inputs, daily_yield[days])
+        else:
+            kernels.run_tiles_annual(*inputs)
 
-    # the kernel marks a year with an invalid input day by a NaN rain sum
-    bad_tiles = np.flatnonzero(np.isnan(annual[kernels.A_RAIN]).any(axis=0))
-    if bad_tiles.size:
-        _raise_first_bad_value((*forcing, np.broadcast_to(leaf_area, forcing[0].shape)), bad_tiles)
+    # the kernel marks a non-finite input by a NaN or inf rain sum, a negative one by its
+    # lowest-input state row
+    lowest = kernels.unpack_row(state, kernels.N_STATE, kernels.S_LOWEST_INPUT, n_tiles)
+    bad = ~np.isfinite(annual[kernels.A_RAIN]).all(axis=0) | ~(lowest >= 0.0)
+    if bad.any():
+        named = dict(zip(_FORCING_NAMES, forcing, strict=False))
+        _raise_first_bad_value(named, np.flatnonzero(bad))
 
     result = TileAnnual(**dict(zip(kernels.ANNUAL_NAMES, annual, strict=True)))
     daily_dict = None if daily is None else dict(zip(kernels.DAILY_NAMES, daily, strict=True))

@@ -20,8 +20,8 @@ FLOAT32_UNIT_ROUNDOFF = 2.0**-24
 
 
 def _case():
-    # 2 years, 37 tiles: a full block, a partial block, land and water tiles
-    return make_case(seed=11, n_days=730, n_tiles=37, n_years=2)
+    # 2 years, 300 tiles: a full block of kernels.BLOCK (256), a partial block, land and water
+    return make_case(seed=11, n_days=730, n_tiles=300, n_years=2)
 
 
 def _args(case):
@@ -100,8 +100,8 @@ def test_open_water_and_interception_are_kept_apart():
 def test_invalid_input_is_reported_with_every_output_option(options, value):
     case = _case()
     wet = case.wet.copy()
-    wet[400, 20] = value  # a day after the first year's start, a tile in the second block
-    with pytest.raises(ValueError, match=r"wet_mm\[day 400, tile 20\]"):
+    wet[400, 280] = value  # a day after the first year's start, a tile in the second block
+    with pytest.raises(ValueError, match=r"wet_mm\[day 400, tile 280\]"):
         simulate_tiles(case.rain, wet, case.dry, case.soil, case.params, case.year_index, **options)
 
 

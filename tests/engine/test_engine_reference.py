@@ -36,7 +36,7 @@ def test_kernel_matches_plain_python_reference(case):
     _compare(case)
 
 
-@pytest.mark.parametrize("n_tiles", [1, 7, 8, 9, 17])
+@pytest.mark.parametrize("n_tiles", [1, 7, 8, 9, 17, 255, 256, 257])
 def test_reference_across_block_edges(n_tiles):
     # tiles are processed in blocks of kernels.BLOCK: check partial and full blocks
     _compare(make_case(seed=n_tiles, n_days=60, n_tiles=n_tiles, n_years=2))
@@ -64,20 +64,19 @@ def test_py_func_runs_without_the_compiler():
     assert kernels.curve_number_runoff.py_func(50.8, 63.5) == pytest.approx(
         kernels.curve_number_runoff(50.8, 63.5)
     )
+    cover = 1.0 - math.exp(-0.5 * 2.88)
+    lines = kernels.retention_lines(400.0, 169.0, 73.6, 150.0)  # S of AMC I, II, III; TAW
     day = (
         20.0,  # rain
         4.0,  # wet
         3.0,  # dry
         0.5,  # soil energy
-        2.88,  # lai
-        1.0 - math.exp(-0.5 * 2.88),  # cover
-        0.2,  # capacity per lai
-        1 / 1.5,
-        400.0,
-        169.0,
-        73.6,
+        0.2 * 2.88,  # capacity: per lai x lai
+        cover,
+        1.0 / (1.0 - cover),
+        1 / (24 * 1.5),
+        *lines,
         150.0,
-        1 / 150,
         1 / 75,
         19.0,  # TEW
         1 / 10.0,  # 1 / (TEW - REW)
@@ -89,11 +88,10 @@ def test_py_func_runs_without_the_compiler():
     assert kernels.tile_day.py_func(*day) == pytest.approx(kernels.tile_day(*day))
     # the whole run through .py_func (its inner helpers stay compiled)
     case = make_case(seed=5, n_days=30, n_tiles=3, n_years=1)
-    from coveryield.engine.water_balance import _cover_rows, _initial_state, _kernel_parameters
+    from coveryield.engine.water_balance import _canopy_rows, _initial_state, _kernel_parameters
 
     outputs = []
-    lai = case.params.reference_lai().reshape(1, -1)
-    cover = _cover_rows(lai, case.params)
+    canopy = _canopy_rows(case.params.reference_lai().reshape(1, -1), case.params)
     for runner in (kernels.run_tiles, kernels.run_tiles.py_func):
         state = _initial_state(case.params)
         annual = np.zeros((8, 1, 3))
@@ -103,8 +101,7 @@ def test_py_func_runs_without_the_compiler():
             case.wet,
             case.dry,
             case.soil,
-            lai,
-            cover,
+            canopy,
             0,
             case.year_index,
             _kernel_parameters(case.params),
