@@ -321,10 +321,8 @@ def inverse_clear_sky_table(lat_deg, elevation_m):  # pragma: no cover - compile
 
 
 @njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")
-def _net_radiation(
-    tmax, tmin, ea, rs, inv_rso, albedo, sigma, rs_rso_lower
-):  # pragma: no cover - compiled
-    """Rn = (1 - albedo) Rs - Rnl [MJ m-2 d-1] (FAO-56 eqs. 38-40; ASCE-EWRI 2005 eq. 18)."""
+def _net_longwave(tmax, tmin, ea, rs, inv_rso, sigma, rs_rso_lower):  # pragma: no cover
+    """Rnl [MJ m-2 d-1] (FAO-56 eq. 39; ASCE-EWRI 2005 eq. 17)."""
     ratio = rs * inv_rso if inv_rso > 0.0 else 1.0  # Rso = 0 in polar night: ratio taken as 1
     ratio = ratio if ratio < 1.0 else 1.0
     ratio = ratio if ratio > rs_rso_lower else rs_rso_lower
@@ -332,13 +330,21 @@ def _net_radiation(
     kmin = tmin + KELVIN_OFFSET_K
     kmax2 = kmax * kmax
     kmin2 = kmin * kmin
-    rnl = (
+    return (
         sigma
         * 0.5
         * (kmax2 * kmax2 + kmin2 * kmin2)
         * (0.34 - 0.14 * math.sqrt(ea))
         * (1.35 * ratio - 0.35)
     )  # FAO-56 eq. 39
+
+
+@njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")
+def _net_radiation(
+    tmax, tmin, ea, rs, inv_rso, albedo, sigma, rs_rso_lower
+):  # pragma: no cover - compiled
+    """Rn = (1 - albedo) Rs - Rnl [MJ m-2 d-1] (FAO-56 eqs. 38-40; ASCE-EWRI 2005 eq. 18)."""
+    rnl = _net_longwave(tmax, tmin, ea, rs, inv_rso, sigma, rs_rso_lower)
     return (1.0 - albedo) * rs - rnl  # FAO-56 eqs. 38, 40
 
 
@@ -347,10 +353,16 @@ def _reference_day(
     tmax, tmin, ea, rs, u2, inv_rso, es, delta, gamma, cn, cd, sigma, rs_rso_lower, vpd_floor
 ):  # pragma: no cover - compiled
     """Eq. 6 for one day given its es and Delta [mm d-1]."""
+    rn = _net_radiation(tmax, tmin, ea, rs, inv_rso, REFERENCE_ALBEDO, sigma, rs_rso_lower)
+    return _reference_day_rn(tmax, tmin, ea, u2, rn, es, delta, gamma, cn, cd, vpd_floor)
+
+
+@njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")
+def _reference_day_rn(tmax, tmin, ea, u2, rn, es, delta, gamma, cn, cd, vpd_floor):  # pragma: no cover
+    """Eq. 6 for one day given its net radiation, es and Delta [mm d-1]."""
     tmean = 0.5 * (tmax + tmin)  # FAO-56 eq. 9
     vpd = es - ea
     vpd = vpd if vpd > vpd_floor else vpd_floor
-    rn = _net_radiation(tmax, tmin, ea, rs, inv_rso, REFERENCE_ALBEDO, sigma, rs_rso_lower)
     t_kelvin = tmean + 273.0
     # FAO-56 eq. 6, G = 0, multiplied through by T + 273: one division for both denominators
     return (RADIATION_TO_EVAPORATION_MM_PER_MJ * delta * rn * t_kelvin + gamma * cn * u2 * vpd) / (
@@ -612,8 +624,18 @@ def _canopy_day(
     min_wind,
 ):  # pragma: no cover - compiled
     """Dry- and wet-canopy Penman-Monteith evaporation of one day, dew set to 0 [mm d-1]."""
-    tmean = 0.5 * (tmax + tmin)  # FAO-56 eq. 9
     rn = _net_radiation(tmax, tmin, ea, rs, inv_rso, albedo, STEFAN_BOLTZMANN_FAO56, -np.inf)
+    return _canopy_day_rn(tmax, tmin, ea, wind, rn, es, delta, pressure, gamma, rs_s_per_m,
+                          wind_factor, inv_ra_per_wind, min_wind)
+
+
+@njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")
+def _canopy_day_rn(
+    tmax, tmin, ea, wind, rn, es, delta, pressure, gamma, rs_s_per_m, wind_factor,
+    inv_ra_per_wind, min_wind,
+):  # pragma: no cover - compiled
+    """:func:`_canopy_day` given the cover's net radiation Rn [MJ m-2 d-1]."""
+    tmean = 0.5 * (tmax + tmin)  # FAO-56 eq. 9
     wind = min_wind if wind < min_wind else wind  # calm air: ra would be infinite; NaN stays
     inv_ra = wind * wind_factor * inv_ra_per_wind  # 1 / ra, FAO-56 eq. 4 above the canopy
     t_kelvin = tmean + KELVIN_OFFSET_K
@@ -765,16 +787,17 @@ def canopy_evaporation_kernel(
 def _soil_energy_day(et0, dry, wind2, ea, exp_max, height_factor):  # pragma: no cover - compiled
     """(Kc,max ETo - E_dry)+ of one day, FAO-56 eqs. 10, 71 and 72 [mm d-1]; NaN stays NaN."""
     et0 = 0.0 if et0 < 0.0 else et0
-    kcb = dry / et0 if et0 > 0.0 else 0.0  # the dry-canopy rate stands in for Kcb ETo
     u2 = 1.0 if wind2 < 1.0 else wind2  # eq. 72 applies for u2 in 1-6 m s-1
     u2 = 6.0 if u2 > 6.0 else u2
     rh_min = 100.0 * ea / (SATURATION_A_KPA * exp_max)  # FAO-56 eq. 10 at Tmax
     rh_min = 20.0 if rh_min < 20.0 else rh_min  # and RHmin in 20-80 %
     rh_min = 80.0 if rh_min > 80.0 else rh_min
-    kc_max = 1.2 + (0.04 * (u2 - 2.0) - 0.004 * (rh_min - 45.0)) * height_factor  # eq. 72
-    wetted = kcb + 0.05
-    kc_max = wetted if wetted > kc_max else kc_max
-    energy = kc_max * et0 - dry  # FAO-56 eq. 71 with Kr = 1
+    kc_climate = 1.2 + (0.04 * (u2 - 2.0) - 0.004 * (rh_min - 45.0)) * height_factor  # eq. 72
+    # (Kc,max ETo - E_dry) with Kc,max = max(kc_climate, Kcb + 0.05) and Kcb ETo = E_dry
+    # (eqs. 71-72), multiplied out so that no division by ETo is needed
+    energy = kc_climate * et0 - dry
+    wetted = 0.05 * et0
+    energy = wetted if wetted > energy else energy
     return 0.0 if energy < 0.0 else energy
 
 
@@ -786,13 +809,16 @@ def _cover_day(
 ):  # pragma: no cover - compiled
     """Dry, wet and soil rates of one day of a land cover [mm d-1] (ETo computed if not given)."""
     wind2 = wind_factor_2m * wind  # FAO-56 eq. 47 as a factor
+    rnl = _net_longwave(tmax, tmin, ea, rs, inv_rso, sigma, rs_rso_lower)  # shared by both
     if et0_given:
         et0 = et0_in
     else:
-        et0 = _reference_day(tmax, tmin, ea, rs, wind2, inv_rso, es, delta, gamma, cn, cd,
-                             sigma, rs_rso_lower, vpd_floor)  # FAO-56 eq. 6
-    dry, wet = _canopy_day(tmax, tmin, ea, rs, wind, inv_rso, es, delta, pressure, gamma,
-                           albedo, rs_s_per_m, wind_factor, inv_ra_per_wind, min_wind)
+        rn_grass = (1.0 - REFERENCE_ALBEDO) * rs - rnl  # FAO-56 eqs. 38, 40
+        et0 = _reference_day_rn(tmax, tmin, ea, wind2, rn_grass, es, delta, gamma, cn, cd,
+                                vpd_floor)  # FAO-56 eq. 6
+    rn = (1.0 - albedo) * rs - rnl  # the cover's albedo
+    dry, wet = _canopy_day_rn(tmax, tmin, ea, wind, rn, es, delta, pressure, gamma, rs_s_per_m,
+                              wind_factor, inv_ra_per_wind, min_wind)
     return dry, wet, _soil_energy_day(et0, dry, wind2, ea, exp_max, height_factor)
 
 
@@ -836,6 +862,8 @@ def cover_rates_kernel(
     empty, from FAO-56 eq. 6 with ``cn``, ``cd``, ``sigma``, ``rs_rso_lower`` and ``vpd_floor``
     of the FAO-56 grass reference. ``wind_factor_2m`` brings the station wind to 2 m (eq. 47);
     ``height_factor`` is (h/3)^0.3 of the cover's height h [-]. ``soil_mm`` first holds 1/Rso.
+    Net longwave radiation is computed once a day for the grass reference and the cover: with
+    the FAO-56 ``sigma`` and no lower bound on Rs/Rso it is the same term in both (eq. 39).
     """
     n = tmax_c.shape[0]
     et0_given = et0_mm.shape[0] == n
