@@ -14,8 +14,8 @@ import sys
 
 #: Sub-command name -> module under coveryield.commands (imported lazily).
 COMMANDS = {
-    "cache": "cache",
     "batch": "batch",
+    "cache": "cache",
     "calibrate": "calibrate",
     "climate": "climate",
     "compare": "compare",

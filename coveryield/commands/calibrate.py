@@ -13,8 +13,8 @@ def add_parser(subparsers) -> None:
     parser = subparsers.add_parser(
         "calibrate",
         help="fit catchment-wide parameters to observed flow (split-sample test)",
-        description="Fit the surface-resistance and root-zone factors and the recession constant "
-        "of PLAN.toml's `current` plan to an observed daily flow record (objective: KGE' of "
+        description="Fit the surface-resistance and root-zone factors and the recession constants "
+        "of the fast and groundwater stores of PLAN.toml's `current` plan to an observed daily flow record (objective: KGE' of "
         "Kling et al. 2012), test them on a separate period, and write calibration.json, "
         "calibrated.toml (a new plan file), fit_flow.csv and report.html into DIR. Results are "
         "screening estimates, to be confirmed by licensed hydrological practice and local "
@@ -55,7 +55,7 @@ def run(args: argparse.Namespace) -> int:
                        progress=sys.stderr.isatty())
     print("\n".join(calibration_lines(result)))
     folder = write_calibration_outputs(result, target)
-    print(f"\nwrote {folder}/ (calibration.json, calibrated.toml, fit_flow.csv, report.html)")
+    print(f"\nwrote {len(CALIBRATION_FILES)} files to {folder}/: {', '.join(CALIBRATION_FILES)}")
     print(f"next: coveryield compare {folder / 'calibrated.toml'} --ensemble 200")
     from coveryield.comparison import CAUTION
 
