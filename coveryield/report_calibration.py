@@ -10,7 +10,6 @@ Flows are m3 s-1; scores are dimensionless except the bias [%].
 from __future__ import annotations
 
 import json
-import os
 from pathlib import Path
 
 import numpy as np
