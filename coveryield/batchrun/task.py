@@ -67,15 +67,19 @@ def run_catchment(plan_path: str, target: str | None = None) -> CatchmentOutcome
     start = time.perf_counter()  # a worker's first task also pays the imports
     from coveryield.batchrun.layout import input_fingerprint, write_catchment
     from coveryield.comparison import compare
+    from coveryield.engine.threads import engine_threads
     from coveryield.plans import load_plan
 
     try:
-        plan_file = load_plan(plan_path)
-        fingerprint = input_fingerprint(plan_file.source, plan_file.catchment.climate)
-        result = compare(plan_file)
-        summary = result.summary()
-        if target is not None:
-            write_catchment(result, Path(target))
+        # one engine thread per task: a batch's parallelism is across catchments, one task per
+        # worker thread, so threads inside a task would only compete for the same cores
+        with engine_threads(1):
+            plan_file = load_plan(plan_path)
+            fingerprint = input_fingerprint(plan_file.source, plan_file.catchment.climate)
+            result = compare(plan_file)
+            summary = result.summary()
+            if target is not None:
+                write_catchment(result, Path(target))
     except CoveryieldError as exc:
         return CatchmentOutcome(None, str(exc), None, time.perf_counter() - start, os.getpid())
     return CatchmentOutcome(summary, None, fingerprint, time.perf_counter() - start, os.getpid())

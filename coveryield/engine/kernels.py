@@ -45,6 +45,13 @@ forcing is accepted and widened as it is read (half the bytes to stream; all ari
 float64). All of this changes each tile's arithmetic only by rounding (the plain-Python
 reference in the tests agrees to 1e-9).
 
+Several cores: the ``run_tiles*`` kernels take a range of blocks and release the GIL, so
+``water_balance.simulate_tiles`` runs disjoint block ranges in threads (``engine/threads.py``);
+with 4,000 tiles two cores bring the wall time per tile-day from about 4 to about 2.4 ns. The
+block loop counts from 0 and skips the blocks outside the range: a loop starting at the range's
+first block leaves LLVM unable to prove the tile index ≥ 0, and the negative-index wrap-around
+it then generates cost about 3 times the time (measured).
+
 ``fastmath`` is not used. Of its flags, ``nnan``/``ninf`` would let the compiler drop the NaN
 that marks an invalid input, and ``reassoc`` would reorder the running sums that close the
 balance; ``contract`` (fused multiply-add) is safe for closure, since every flux is booked as
@@ -765,9 +772,10 @@ def land_day(
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _open_year(y, st, annual, n_tiles):
-    """Start year ``y``: subtract the stores from its storage change, zero the running sums."""
-    for b in range((n_tiles + BLOCK - 1) // BLOCK):
+def _open_year(y, st, annual, n_tiles, block_lo, block_hi):
+    """Start year ``y`` for blocks ``block_lo``..``block_hi − 1``: subtract the stores from its
+    storage change, zero the running sums."""
+    for b in range(block_lo, block_hi):
         t0 = b * BLOCK
         s0 = b * (N_STATE * BLOCK)
         for j in range(min(BLOCK, n_tiles - t0)):
@@ -778,9 +786,10 @@ def _open_year(y, st, annual, n_tiles):
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _close_year(y, par, st, annual, n_tiles):
-    """End year ``y``: write its running sums and add the stores to its storage change."""
-    for b in range((n_tiles + BLOCK - 1) // BLOCK):
+def _close_year(y, par, st, annual, n_tiles, block_lo, block_hi):
+    """End year ``y`` for blocks ``block_lo``..``block_hi − 1``: write its running sums and add
+    the stores to its storage change."""
+    for b in range(block_lo, block_hi):
         t0 = b * BLOCK
         p0 = b * (N_PAR * BLOCK)
         s0 = b * (N_STATE * BLOCK)
@@ -820,6 +829,8 @@ def _run(
     keep_yield,
     keep_drainage,
     keep_daily,
+    block_lo,
+    block_hi,
 ):
     """Day loop shared by the ``run_tiles*`` kernels; the three flags are compile-time constants.
 
@@ -838,8 +849,13 @@ def _run(
         y = year_index[d]
         dc = d * day_step
         if d == 0 or year_index[d - 1] != y:
-            _open_year(y, st, annual, n_tiles)
+            _open_year(y, st, annual, n_tiles, block_lo, block_hi)
         for b in range(n_blocks):
+            # skip the blocks outside the range rather than start the loop at block_lo: an
+            # index counted up from 0 is known to be ≥ 0, so no negative-index wrap-around is
+            # generated and the tile loop stays vectorised (measured about 3 times faster)
+            if b < block_lo or b >= block_hi:
+                continue
             t0 = b * BLOCK
             p0 = b * (N_PAR * BLOCK)
             s0 = b * (N_STATE * BLOCK)
@@ -906,12 +922,13 @@ def _run(
                         daily[8, d, t0 + j] = s_end
                         daily[9, d, t0 + j] = e_end
         if d == n_days - 1 or year_index[d + 1] != y:
-            _close_year(y, par, st, annual, n_tiles)
+            _close_year(y, par, st, annual, n_tiles, block_lo, block_hi)
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, error_model="numpy", nogil=True)
 def run_tiles(
-    rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, daily_yield
+    rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, daily_yield,
+    block_lo, block_hi,
 ):
     """Run the daily water balance of many tiles and accumulate annual sums.
 
@@ -940,18 +957,23 @@ def run_tiles(
         input shows as a negative ``S_LOWEST_INPUT`` state row.
     daily_yield : ndarray, shape (n_days, n_tiles), C-contiguous float64 or float32
         Quickflow + drainage of each day out, rounded to its dtype [mm d⁻¹].
+    block_lo, block_hi : int
+        Run the tiles of blocks ``block_lo``..``block_hi − 1`` only (tiles ``block_lo·BLOCK``
+        up to ``min(block_hi·BLOCK, n_tiles)``); ``0, n_blocks`` runs them all [-]. The kernels
+        release the GIL, so threads can run disjoint block ranges of one call at once (see
+        ``water_balance.simulate_tiles``): every value a range writes belongs to its own tiles.
 
     Notes
     -----
     The daily physics is :func:`tile_day`.
     """
     _run(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, daily_yield,
-         daily_yield, annual, True, False, False)
+         daily_yield, annual, True, False, False, block_lo, block_hi)
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, error_model="numpy", nogil=True)
 def run_tiles_routed(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual,
-                     daily_yield, daily_drainage):
+                     daily_yield, daily_drainage, block_lo, block_hi):
     """Run as :func:`run_tiles` does, also keeping each day's drainage (for two-store routing).
 
     Parameters
@@ -960,11 +982,12 @@ def run_tiles_routed(rain, wet, dry, soil_pot, canopy, day_step, year_index, par
         Drainage below the root zone of each day out [mm d⁻¹].
     """
     _run(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, daily_yield,
-         daily_drainage, annual, True, True, False)
+         daily_drainage, annual, True, True, False, block_lo, block_hi)
 
 
-@njit(cache=True, error_model="numpy")
-def run_tiles_annual(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual):
+@njit(cache=True, error_model="numpy", nogil=True)
+def run_tiles_annual(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual,
+                     block_lo, block_hi):
     """Run as :func:`run_tiles` does, keeping the annual sums only (no daily yield).
 
     Parameters
@@ -973,12 +996,12 @@ def run_tiles_annual(rain, wet, dry, soil_pot, canopy, day_step, year_index, par
         As for :func:`run_tiles`.
     """
     _run(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, annual, annual,
-         annual, False, False, False)
+         annual, False, False, False, block_lo, block_hi)
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, error_model="numpy", nogil=True)
 def run_tiles_daily(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual,
-                    daily_yield, daily_drainage, daily):
+                    daily_yield, daily_drainage, daily, block_lo, block_hi):
     """Run as :func:`run_tiles_routed` does, also keeping every daily flux and store.
 
     Parameters
@@ -992,4 +1015,4 @@ def run_tiles_daily(rain, wet, dry, soil_pot, canopy, day_step, year_index, par,
     Separate kernels rather than run-time flags keep the fast kernel free of the extra stores.
     """
     _run(rain, wet, dry, soil_pot, canopy, day_step, year_index, par, st, annual, daily_yield,
-         daily_drainage, daily, True, True, True)
+         daily_drainage, daily, True, True, True, block_lo, block_hi)

@@ -30,6 +30,7 @@ from dataclasses import dataclass, fields
 import numpy as np
 
 from coveryield.engine import kernels
+from coveryield.engine.threads import block_runner
 
 #: Mean rainfall intensity while it rains [mm h⁻¹]: typical of frontal rain in temperate
 #: maritime climates; common practice, no source.
@@ -564,6 +565,7 @@ def simulate_tiles(
     keep_daily_drainage: bool = False,
     daily_dtype=None,
     out: np.ndarray | None = None,
+    threads: int | None = None,
 ) -> TileRun:
     """Run the daily water balance of many tiles.
 
@@ -604,6 +606,12 @@ def simulate_tiles(
         across runs so that no fresh memory is allocated and touched; it is returned as
         ``daily_yield_mm`` and its dtype is the daily dtype. On an error its content is
         unspecified.
+    threads : int, optional
+        Most threads to run the tiles on, ≥ 1 [-]. Default: :func:`coveryield.engine.threads.
+        engine_threads`, else the ``COVERYIELD_ENGINE_THREADS`` environment variable, else the
+        cores this process may use; never more than one per block of
+        :data:`~coveryield.engine.kernels.BLOCK` tiles. The results are the same, bit for bit,
+        on any number of threads.
 
     Returns
     -------
@@ -648,17 +656,22 @@ def simulate_tiles(
         drainage = np.empty((n_days, n_tiles), dtype=daily_yield.dtype)
     if keep_daily:
         daily = np.empty((kernels.N_DAILY, n_days, n_tiles))
-    for start, stop, canopy in _canopy_chunks(leaf_area, lai_step, years, params):
-        days = slice(start, stop)
-        inputs = (*(f[days] for f in forcing), canopy, lai_step, years[days], par, state, annual)
-        if keep_daily:
-            kernels.run_tiles_daily(*inputs, daily_yield[days], drainage[days], daily[:, days])
-        elif keep_daily_drainage:
-            kernels.run_tiles_routed(*inputs, daily_yield[days], drainage[days])
-        elif keep_daily_yield:
-            kernels.run_tiles(*inputs, daily_yield[days])
-        else:
-            kernels.run_tiles_annual(*inputs)
+    n_blocks = -(-n_tiles // kernels.BLOCK)
+    with block_runner(n_blocks, threads) as run:
+        for start, stop, canopy in _canopy_chunks(leaf_area, lai_step, years, params):
+            days = slice(start, stop)
+            inputs = (
+                *(f[days] for f in forcing), canopy, lai_step, years[days], par, state, annual
+            )
+            if keep_daily:
+                run(kernels.run_tiles_daily, *inputs, daily_yield[days], drainage[days],
+                    daily[:, days])
+            elif keep_daily_drainage:
+                run(kernels.run_tiles_routed, *inputs, daily_yield[days], drainage[days])
+            elif keep_daily_yield:
+                run(kernels.run_tiles, *inputs, daily_yield[days])
+            else:
+                run(kernels.run_tiles_annual, *inputs)
 
     # the kernel marks a non-finite input by a NaN or inf rain sum, a negative one by its
     # lowest-input state row

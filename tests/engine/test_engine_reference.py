@@ -108,6 +108,8 @@ def test_py_func_runs_without_the_compiler():
             state,
             annual,
             daily_yield,
+            0,
+            1,
         )
         outputs.append((annual, daily_yield, state))
     for compiled, plain in zip(*outputs, strict=True):
