@@ -381,6 +381,7 @@ def tile_forcing(
     tiles: list[tuple[str, str]],
     *,
     progress: bool = False,
+    out: tuple[np.ndarray, ...] | None = None,
 ) -> tuple[np.ndarray, ...]:
     """Rain and the potential evaporation rates of every tile, time-major for the engine.
 
@@ -396,6 +397,9 @@ def tile_forcing(
         (zone, cover) per tile.
     progress : bool
         Show a progress bar on stderr.
+    out : tuple of 4 numpy.ndarray, optional
+        Arrays of shape (n_days, n_tiles) to fill and return, e.g. reused from call to call (an
+        ensemble's members): fresh memory would be paged in on every call.
 
     Returns
     -------
@@ -406,18 +410,25 @@ def tile_forcing(
     from tqdm.auto import tqdm
 
     n_days = len(next(iter(climates.values())).daily.index)
-    rain, wet, dry, soil = (np.empty((n_days, len(tiles))) for _ in range(4))
+    shape = (n_days, len(tiles))
+    if out is not None and any(a.shape != shape for a in out):
+        raise ValueError(f"out: shapes {[a.shape for a in out]}, expected 4 of {shape}")
+    arrays = out if out is not None else tuple(np.empty(shape) for _ in range(4))
+    # filled tile by tile in a tile-major buffer (rows written in order), then turned time-major
+    # in one copy per array: writing each tile as a strided column of the time-major arrays
+    # missed the cache on every value (an ensemble calls this once per member)
+    by_tile = np.empty((4, len(tiles), n_days))
     for k, (zone, cover_name) in enumerate(
         tqdm(tiles, desc="potential evaporation per tile", unit="tile", disable=not progress)
     ):
-        zone_climate = climates[zone]
         cover = adjusted_cover(plan_file.covers[cover_name], plan_file.adjustments)
-        rates = cover_evaporation(zone_climate, cover, et0_mm=et0_by_zone[zone])
-        rain[:, k] = zone_climate.daily["rain_mm"].to_numpy()
-        wet[:, k] = rates["wet_mm"].to_numpy()
-        dry[:, k] = rates["dry_mm"].to_numpy()
-        soil[:, k] = rates["soil_mm"].to_numpy()
-    return rain, wet, dry, soil
+        rates = cover_evaporation(climates[zone], cover, et0_mm=et0_by_zone[zone])
+        by_tile[0, k] = climates[zone].daily["rain_mm"].to_numpy()
+        for row, name in enumerate(("wet_mm", "dry_mm", "soil_mm"), start=1):
+            by_tile[row, k] = rates[name].to_numpy()
+    for array, rows in zip(arrays, by_tile, strict=True):
+        np.copyto(array, rows.T)
+    return arrays
 
 
 def simulate_catchment(

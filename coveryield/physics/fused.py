@@ -1242,3 +1242,46 @@ def site_inverse_clear_sky(lat_deg, elevation_m):
     """
     check_latitude(lat_deg)
     return _inverse_clear_sky_cached(float(lat_deg), float(elevation_m))
+
+
+@njit(cache=True, error_model="numpy")
+def relax_series(te_c, decay, spin_days, initial_c, use_initial):  # pragma: no cover - compiled
+    """Compiled day loop of :func:`coveryield.physics.open_water.water_temperature`.
+
+    Parameters
+    ----------
+    te_c : ndarray, shape (n_days,)
+        Equilibrium temperature of each day [°C].
+    decay : ndarray, shape (n_days,)
+        exp(−K/C) of each day [-].
+    spin_days : int
+        Days run once to find the start temperature when ``use_initial`` is False [d].
+    initial_c : float
+        Start temperature when ``use_initial`` is True [°C].
+    use_initial : bool
+        Take ``initial_c`` as the start, else run the spin-up from Te of the first day.
+
+    Returns
+    -------
+    tw_c : ndarray, shape (n_days,)
+        Water temperature at the end of each day [°C].
+    start_c : float
+        Temperature at the start of the first day [°C].
+
+    Notes
+    -----
+    Tw,end = Te + (Tw,start − Te)·exp(−K/C), the exact one-day step; the same operations in the
+    same order as the plain-Python loop, so the same numbers bit for bit.
+    """
+    n = te_c.shape[0]
+    start = initial_c
+    if not use_initial:
+        start = te_c[0]
+        for i in range(min(spin_days, n)):
+            start = te_c[i] + (start - te_c[i]) * decay[i]
+    tw = np.empty(n)
+    previous = start
+    for i in range(n):
+        previous = te_c[i] + (previous - te_c[i]) * decay[i]
+        tw[i] = previous
+    return tw, start

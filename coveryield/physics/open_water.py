@@ -45,11 +45,14 @@ References
 
 from __future__ import annotations
 
+import sys
+
 import numpy as np
 
 from .evaporation import SECONDS_PER_DAY, VON_KARMAN, penman_monteith
 from .meteo import (
     KELVIN_OFFSET_K,
+    SATURATION_C_C,
     SPECIFIC_HEAT_AIR_MJ_PER_KG_C,
     _arr,
     _like,
@@ -154,8 +157,10 @@ def wet_bulb_temperature(t_c, ea_kpa, pressure_kpa):
     gamma = _arr(psychrometric_constant(pressure_kpa))
     tn = np.array(t, dtype=float, copy=True)
     for _ in range(_NEWTON_STEPS):
-        residual = _arr(saturation_vapour_pressure(tn)) - gamma * (t - tn) - ea  # FAO-56 eq. 15
-        tn = tn - residual / (_arr(vapour_pressure_slope(tn)) + gamma)
+        e0 = _arr(saturation_vapour_pressure(tn))
+        residual = e0 - gamma * (t - tn) - ea  # FAO-56 eq. 15
+        # Δ by FAO-56 eq. 13 from the e° just computed (vapour_pressure_slope's own formula)
+        tn = tn - residual / (4098.0 * e0 / (tn + SATURATION_C_C) ** 2 + gamma)
     return _like(tn, t_c, ea_kpa)
 
 
@@ -249,9 +254,23 @@ def water_temperature(te_c, k_mj, depth_m, initial_c=None):
     """
     te = np.asarray(te_c, dtype=float)
     decay = np.exp(-np.asarray(k_mj, dtype=float) / (WATER_HEAT_CAPACITY_MJ_PER_M3_K * depth_m))
-    te_list, decay_list = te.tolist(), decay.tolist()
-    if not te_list:
+    if te.size == 0:
         return np.empty(0), np.empty(0)
+    if "numba" in sys.modules:  # loaded already: the compiled loop costs no start-up
+        from .fused import relax_series
+
+        tw, initial_c = relax_series(te, decay, SPIN_UP_DAYS, float(initial_c or 0.0),
+                                     initial_c is not None)
+    else:
+        tw, initial_c = _relax_series_python(te, decay, initial_c)
+    start = np.concatenate([[float(initial_c)], tw[:-1]])
+    stored = WATER_HEAT_CAPACITY_MJ_PER_M3_K * depth_m * (tw - start)
+    return tw, stored
+
+
+def _relax_series_python(te, decay, initial_c):
+    """Plain-Python twin of :func:`coveryield.physics.fused.relax_series` (same numbers)."""
+    te_list, decay_list = te.tolist(), decay.tolist()
     if initial_c is None:
         initial_c = te_list[0]
         spin = min(SPIN_UP_DAYS, len(te_list))
@@ -262,9 +281,7 @@ def water_temperature(te_c, k_mj, depth_m, initial_c=None):
     for i, (target, factor) in enumerate(zip(te_list, decay_list, strict=True)):
         previous = target + (previous - target) * factor  # exact one-day step
         tw[i] = previous
-    start = np.concatenate([[float(initial_c)], tw[:-1]])
-    stored = WATER_HEAT_CAPACITY_MJ_PER_M3_K * depth_m * (tw - start)
-    return tw, stored
+    return tw, initial_c
 
 
 def open_water_evaporation(tmax_c, tmin_c, ea_kpa, rs_mj, u2_ms, doy, lat_deg, elevation_m,

@@ -178,12 +178,15 @@ def simulate_ensemble(
     per_member = 4 * 8 * n_days * n_tiles
     chunk = int(max(1, min(n_members, memory_mb * 1e6 // per_member)))
     out = np.empty((n_members, int(keep.sum()), n_tiles))
+    # reused from chunk to chunk and member to member: fresh memory is paged in on first touch,
+    # which cost more than filling it
+    wide = tuple(np.empty(n_days * n_tiles * chunk) for _ in range(4))
     with tqdm(total=n_members, desc="ensemble members", unit="member",
               disable=not progress) as bar:
         for start in range(0, n_members, chunk):
             stop = min(start + chunk, n_members)
             out[start:stop] = _run_chunk(plan_file, design, values.iloc[start:stop], climates,
-                                         et0_by_zone, tiles, year_codes, keep)
+                                         et0_by_zone, tiles, year_codes, keep, wide)
             bar.update(stop - start)
             if on_progress is not None:
                 on_progress(stop, n_members)
@@ -203,20 +206,25 @@ def _member_leaf_area(leaf_areas, parts, n_days):
     return np.ascontiguousarray(np.hstack(blocks))
 
 
-def _run_chunk(plan_file, design, values, climates, et0_by_zone, tiles, year_codes, keep):
-    """Annual yield (members, kept years, tiles) of one chunk of members."""
+def _run_chunk(plan_file, design, values, climates, et0_by_zone, tiles, year_codes, keep,
+               wide):
+    """Annual yield (members, kept years, tiles) of one chunk of members.
+
+    ``wide`` holds four flat buffers of at least n_days × n_tiles × n_members values; they are
+    overwritten.
+    """
     n_days, n_tiles, n_members = len(year_codes), len(tiles), len(values)
-    arrays = tuple(np.empty((n_days, n_tiles * n_members)) for _ in range(4))
+    size = n_days * n_tiles * n_members
+    arrays = tuple(flat[:size].reshape(n_days, n_tiles * n_members) for flat in wide)
     dates = next(iter(climates.values())).daily.index
     parts, leaf_areas = [], []
     for j, (_, row) in enumerate(values.iterrows()):
         member = design.member_plan(plan_file, row)
         columns = slice(j * n_tiles, (j + 1) * n_tiles)
-        # fill one member's compact block, then copy it in: rows of n_tiles values at a time
-        # are far cheaper than single strided columns of the wide chunk array
-        for wide, block in zip(arrays, tile_forcing(member, climates, et0_by_zone, tiles),
-                               strict=True):
-            wide[:, columns] = block
+        # the member's columns of the wide arrays: tile_forcing writes them a day (n_tiles
+        # values in a row) at a time, far cheaper than a tile's strided column at a time
+        tile_forcing(member, climates, et0_by_zone, tiles,
+                     out=tuple(array[:, columns] for array in arrays))
         parts.append(tile_parameters(member, tiles))
         leaf_areas.append(daily_leaf_area(member, tiles, dates))  # crops follow their season
     run = simulate_tiles(*arrays, _concat_parameters(parts), year_codes.astype(np.int64),

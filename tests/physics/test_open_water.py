@@ -6,6 +6,7 @@ semi-arid one at 33° S, besides the demo record.
 
 from __future__ import annotations
 
+import sys
 from pathlib import Path
 
 import numpy as np
@@ -120,6 +121,21 @@ def test_water_temperature_follows_its_equilibrium_exactly():
     np.testing.assert_allclose(tw, te + (start - te) * np.exp(-k * days / c), rtol=1e-12)
     assert stored.sum() == pytest.approx(c * (tw[-1] - start), rel=1e-12)
     assert open_water.time_constant_days(k, depth) == pytest.approx(c / k)
+
+
+@pytest.mark.parametrize("initial_c", [None, 4.0])
+def test_compiled_and_plain_water_temperature_agree_exactly(monkeypatch, initial_c):
+    # the compiled day loop (used once numba is loaded) and the plain-Python one do the same
+    # operations in the same order: equal bit for bit (our design, C)
+    import numba  # noqa: F401 - loaded, so the compiled path is taken first
+
+    rng = np.random.default_rng(3)
+    te, k = rng.uniform(-5.0, 30.0, 800), rng.uniform(0.5, 6.0, 800)
+    compiled = open_water.water_temperature(te, k, 4.0, initial_c)
+    monkeypatch.delitem(sys.modules, "numba")  # as in a process that never loaded it
+    plain = open_water.water_temperature(te, k, 4.0, initial_c)
+    for a, b in zip(compiled, plain, strict=True):
+        np.testing.assert_array_equal(a, b)
 
 
 def test_steady_weather_stores_no_heat():
