@@ -51,11 +51,13 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: list[str] | None = None) -> int:
     """Run the command line; return the process exit status."""
+    from coveryield.engine.threads import threads_from_environment
     from coveryield.errors import CoveryieldError
 
     parser = build_parser()
     args = parser.parse_args(argv)
     try:
+        threads_from_environment()  # a bad setting is one message before any work
         return int(args.run(args) or 0)
     except CoveryieldError as exc:
         print(f"coveryield {args.command}: error: {exc}", file=sys.stderr)

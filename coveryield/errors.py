@@ -37,3 +37,7 @@ class ObservedFlowError(CoveryieldError, ValueError):
 
 class CalibrationError(CoveryieldError, ValueError):
     """A calibration cannot be set up (e.g. too few observed days in a period)."""
+
+
+class SettingError(CoveryieldError, ValueError):
+    """An environment variable of coveryield has a value it cannot use."""

@@ -21,8 +21,9 @@ from __future__ import annotations
 
 import contextlib
 import os
-from concurrent.futures import ThreadPoolExecutor
 from contextvars import ContextVar
+
+from coveryield.errors import SettingError
 
 #: Environment variable that caps the engine's threads (a whole number ≥ 1).
 THREADS_VARIABLE = "COVERYIELD_ENGINE_THREADS"
@@ -38,7 +39,15 @@ def available_cores() -> int:
         return os.cpu_count() or 1
 
 
-def _from_environment() -> int | None:
+def threads_from_environment() -> int | None:
+    """The ``COVERYIELD_ENGINE_THREADS`` setting, or None when it is not set [-].
+
+    Raises
+    ------
+    SettingError
+        If it is set to anything but a whole number ≥ 1 (the command line checks this before
+        any work, so the mistake is one message, not a traceback mid-run).
+    """
     text = os.environ.get(THREADS_VARIABLE, "").strip()
     if not text:
         return None
@@ -47,7 +56,10 @@ def _from_environment() -> int | None:
     except ValueError:
         value = 0
     if value < 1:
-        raise ValueError(f"{THREADS_VARIABLE}={text!r}: expected a whole number ≥ 1")
+        raise SettingError(
+            f"environment variable {THREADS_VARIABLE}={text!r}: expected a whole number ≥ 1 "
+            "(the most threads one engine run may use), or leave it unset to use every core"
+        )
     return value
 
 
@@ -78,7 +90,7 @@ def threads_for(n_blocks: int, threads: int | None = None) -> int:
     if threads is not None:
         wanted = _checked(threads, "threads")
     else:
-        wanted = _threads.get() or _from_environment() or available_cores()
+        wanted = _threads.get() or threads_from_environment() or available_cores()
     return max(1, min(wanted, n_blocks))
 
 
@@ -108,6 +120,8 @@ def block_runner(n_blocks: int, threads: int | None = None):
     if n_threads == 1:
         yield lambda kernel, *args: kernel(*args, 0, n_blocks)
         return
+    from concurrent.futures import ThreadPoolExecutor  # only when a run is split
+
     spans = block_spans(n_blocks, n_threads)
     with ThreadPoolExecutor(max_workers=len(spans), thread_name_prefix="coveryield-engine") as pool:
 

@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 
 from coveryield.engine import kernels, threads
+from coveryield.errors import SettingError
 from coveryield.engine.water_balance import simulate_tiles
 
 from .cases import make_case
@@ -74,8 +75,18 @@ def test_thread_count_precedence(monkeypatch):
 @pytest.mark.parametrize("text", ["0", "two", "-1", "1.5"])
 def test_a_bad_environment_value_is_one_clear_message(monkeypatch, text):
     monkeypatch.setenv(threads.THREADS_VARIABLE, text)
-    with pytest.raises(ValueError, match=rf"COVERYIELD_ENGINE_THREADS='{text}': expected a whole"):
+    with pytest.raises(SettingError, match=rf"COVERYIELD_ENGINE_THREADS='{text}': expected a whole"):
         threads.threads_for(4)
+
+
+def test_the_command_line_reports_a_bad_setting_in_one_line(monkeypatch, capsys):
+    from coveryield import cli
+
+    monkeypatch.setenv(threads.THREADS_VARIABLE, "two")
+    assert cli.main(["covers", "demo_data/plans.toml"]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "COVERYIELD_ENGINE_THREADS='two'" in err
+    assert "Traceback" not in err
 
 
 @pytest.mark.parametrize("bad", [0, -2, 1.5, True, "2"])
@@ -89,6 +100,6 @@ def test_a_small_catchment_starts_no_thread(monkeypatch):
     def no_pool(*args, **kwargs):
         raise AssertionError("a thread pool was started for one block of tiles")
 
-    monkeypatch.setattr(threads, "ThreadPoolExecutor", no_pool)
+    monkeypatch.setattr("concurrent.futures.ThreadPoolExecutor", no_pool)
     case = make_case(seed=3, n_days=30, n_tiles=kernels.BLOCK, n_years=1)
     simulate_tiles(*case.args, threads=4)
