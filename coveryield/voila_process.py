@@ -28,6 +28,7 @@ from typing import Any
 
 from jupyter_server.services.kernels.connection.channels import ZMQChannelsWebsocketConnection
 from tornado import web
+from tornado.iostream import StreamClosedError
 from tornado.websocket import WebSocketClosedError
 
 from coveryield.serve import MAX_KERNELS_FLAG
@@ -142,12 +143,27 @@ class QuietDisconnectConnection(ZMQChannelsWebsocketConnection):
             if self._gone:
                 return None
             try:
-                return send(message, binary=binary)
+                sent = send(message, binary=binary)
             except WebSocketClosedError:
                 self._note_gone()
                 return None
+            if hasattr(sent, "add_done_callback"):
+                # a write under way when the socket closes fails later, in its own task: settle
+                # it here, or asyncio logs "Task exception was never retrieved" with a traceback
+                sent.add_done_callback(self._settle)
+            return sent
 
         return write
+
+    def _settle(self, sent: Any) -> None:
+        """Retrieve the outcome of a finished write; a closed socket means the viewer has gone."""
+        if sent.cancelled():
+            return
+        error = sent.exception()
+        if isinstance(error, (WebSocketClosedError, StreamClosedError)):
+            self._note_gone()
+        elif error is not None:
+            self.log.error("sending to the viewer of kernel %s failed: %r", self.kernel_id, error)
 
     def _note_gone(self) -> None:
         if not self._gone:

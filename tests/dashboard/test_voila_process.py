@@ -105,3 +105,41 @@ def test_the_cap_flag_is_taken_out_before_voila_reads_its_arguments():
     cap, rest = _pop_max_kernels(["nb.ipynb", "--coveryield-max-kernels=3", "--port=1"])
     assert cap == 3
     assert rest == ["nb.ipynb", "--port=1"]
+
+
+def test_a_write_that_fails_after_the_viewer_left_is_settled_quietly(caplog):
+    # a write under way when the browser dies fails later in its own task; unsettled, asyncio
+    # logs "Task exception was never retrieved" with a traceback (seen under load in the browser
+    # test of a dropped viewer)
+    from tornado.iostream import StreamClosedError
+    from tornado.websocket import WebSocketClosedError
+
+    from coveryield.voila_process import QuietDisconnectConnection
+
+    loop = asyncio.new_event_loop()
+    try:
+        pending = [loop.create_future() for _ in range(3)]
+
+        class Handler:
+            def write_message(self, message, binary=False):
+                return pending.pop(0)
+
+        class Bare(QuietDisconnectConnection):
+            """The connection without a kernel manager: only what writing needs."""
+
+            websocket_handler = Handler()
+            kernel_id = "k0"
+            log = logging.getLogger("fake-voila")
+
+        connection = Bare.__new__(Bare)  # traits set up, no kernel connection made
+        caplog.set_level(logging.INFO, logger="fake-voila")
+        sent = [connection.write_message(f"m{i}") for i in range(3)]
+        sent[0].set_result(None)
+        sent[1].set_exception(WebSocketClosedError())
+        sent[2].set_exception(StreamClosedError())
+        loop.run_until_complete(asyncio.sleep(0))  # run the done callbacks
+        assert all(not future._log_traceback for future in sent)  # retrieved: no traceback
+        assert caplog.text.count("viewer disconnected from kernel k0") == 1
+        assert connection.write_message("after") is None  # dropped once the viewer has gone
+    finally:
+        loop.close()
