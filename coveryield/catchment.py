@@ -398,8 +398,8 @@ def tile_forcing(
     progress : bool
         Show a progress bar on stderr.
     out : tuple of 4 numpy.ndarray, optional
-        Arrays of shape (n_days, n_tiles) to fill and return, e.g. reused from call to call (an
-        ensemble's members): fresh memory would be paged in on every call.
+        Arrays (or views) of shape (n_days, n_tiles) to fill and return, e.g. one ensemble
+        member's columns of the wide arrays the engine runs all members on.
 
     Returns
     -------

@@ -183,10 +183,31 @@ def vapour_pressure_slope(t_c):
     FAO-56 (Allen et al. 1998), eq. 13.
     """
     t = _arr(t_c)
-    delta = (
-        4098.0 * _arr(saturation_vapour_pressure(t)) / (t + SATURATION_C_C) ** 2
-    )  # FAO-56 eq. 13
-    return _like(delta, t_c)
+    return _like(slope_from_saturation(t, _arr(saturation_vapour_pressure(t))), t_c)
+
+
+def slope_from_saturation(t_c, e0_kpa):
+    """Slope Δ of the saturation curve at ``t_c`` from e°(``t_c``) already computed [kPa °C-1].
+
+    Parameters
+    ----------
+    t_c : float or array_like
+        Temperature [°C].
+    e0_kpa : float or array_like
+        Saturation vapour pressure at that temperature, :func:`saturation_vapour_pressure`
+        [kPa].
+
+    Returns
+    -------
+    float or array_like
+        Δ = 4098·e°/(T + 237.3)² [kPa °C-1] (one exp fewer than :func:`vapour_pressure_slope`,
+        the same value).
+
+    References
+    ----------
+    FAO-56 (Allen et al. 1998), eq. 13.
+    """
+    return 4098.0 * e0_kpa / (t_c + SATURATION_C_C) ** 2  # FAO-56 eq. 13
 
 
 def actual_vapour_pressure_from_dewpoint(tdew_c):

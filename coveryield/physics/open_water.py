@@ -52,7 +52,6 @@ import numpy as np
 from .evaporation import SECONDS_PER_DAY, VON_KARMAN, penman_monteith
 from .meteo import (
     KELVIN_OFFSET_K,
-    SATURATION_C_C,
     SPECIFIC_HEAT_AIR_MJ_PER_KG_C,
     _arr,
     _like,
@@ -60,6 +59,7 @@ from .meteo import (
     atmospheric_pressure,
     psychrometric_constant,
     saturation_vapour_pressure,
+    slope_from_saturation,
     vapour_pressure_slope,
 )
 from .radiation import (
@@ -159,8 +159,7 @@ def wet_bulb_temperature(t_c, ea_kpa, pressure_kpa):
     for _ in range(_NEWTON_STEPS):
         e0 = _arr(saturation_vapour_pressure(tn))
         residual = e0 - gamma * (t - tn) - ea  # FAO-56 eq. 15
-        # Δ by FAO-56 eq. 13 from the e° just computed (vapour_pressure_slope's own formula)
-        tn = tn - residual / (4098.0 * e0 / (tn + SATURATION_C_C) ** 2 + gamma)
+        tn = tn - residual / (slope_from_saturation(tn, e0) + gamma)  # Δ: FAO-56 eq. 13
     return _like(tn, t_c, ea_kpa)
 
 

@@ -178,15 +178,12 @@ def simulate_ensemble(
     per_member = 4 * 8 * n_days * n_tiles
     chunk = int(max(1, min(n_members, memory_mb * 1e6 // per_member)))
     out = np.empty((n_members, int(keep.sum()), n_tiles))
-    # reused from chunk to chunk and member to member: fresh memory is paged in on first touch,
-    # which cost more than filling it
-    wide = tuple(np.empty(n_days * n_tiles * chunk) for _ in range(4))
     with tqdm(total=n_members, desc="ensemble members", unit="member",
               disable=not progress) as bar:
         for start in range(0, n_members, chunk):
             stop = min(start + chunk, n_members)
             out[start:stop] = _run_chunk(plan_file, design, values.iloc[start:stop], climates,
-                                         et0_by_zone, tiles, year_codes, keep, wide)
+                                         et0_by_zone, tiles, year_codes, keep)
             bar.update(stop - start)
             if on_progress is not None:
                 on_progress(stop, n_members)
@@ -206,16 +203,10 @@ def _member_leaf_area(leaf_areas, parts, n_days):
     return np.ascontiguousarray(np.hstack(blocks))
 
 
-def _run_chunk(plan_file, design, values, climates, et0_by_zone, tiles, year_codes, keep,
-               wide):
-    """Annual yield (members, kept years, tiles) of one chunk of members.
-
-    ``wide`` holds four flat buffers of at least n_days × n_tiles × n_members values; they are
-    overwritten.
-    """
+def _run_chunk(plan_file, design, values, climates, et0_by_zone, tiles, year_codes, keep):
+    """Annual yield (members, kept years, tiles) of one chunk of members."""
     n_days, n_tiles, n_members = len(year_codes), len(tiles), len(values)
-    size = n_days * n_tiles * n_members
-    arrays = tuple(flat[:size].reshape(n_days, n_tiles * n_members) for flat in wide)
+    arrays = tuple(np.empty((n_days, n_tiles * n_members)) for _ in range(4))
     dates = next(iter(climates.values())).daily.index
     parts, leaf_areas = [], []
     for j, (_, row) in enumerate(values.iterrows()):
