@@ -82,6 +82,12 @@ PARAMETER_INFO: dict[str, tuple[str, str, str]] = {
         "farm ponds 1-3, small lakes and reservoirs 3-10 (mean depth of the mixed layer)",
         "common practice, no source; used by the heat storage of open water",
     ),
+    "water_fetch_m": (
+        "m",
+        "farm ponds 20-200, small reservoirs 200-2,000 (length along the wind, about the "
+        "square root of a compact water body's area)",
+        "McJannet et al. (2008) wind function; sizes common practice, no source",
+    ),
 }
 
 
@@ -358,6 +364,10 @@ class Cover(BaseModel):
     water_depth_m : float
         For open water: mean depth of the mixed water column, which sets how much heat the
         water stores [m].
+    water_fetch_m : float
+        For open water: fetch of a typical water body of the cover, its length along the wind
+        (about the square root of its area) [m]. Small ponds exchange more vapour per unit area
+        than large lakes (McJannet et al. 2008 wind function).
     growth : Growth or None
         For covers that derive from forest: how a newly planted stand grows toward these
         (mature) parameters over the years; None: the cover does not grow (a fixed stage).
@@ -381,6 +391,7 @@ class Cover(BaseModel):
     curve_number: dict[str, float]
     kc_calendar: KcCalendar | None = None
     water_depth_m: float = Field(2.0, gt=0.0, le=500.0)
+    water_fetch_m: float = Field(100.0, ge=1.0, le=100_000.0)
     growth: Growth | None = None
 
     @field_validator("curve_number")
@@ -532,6 +543,7 @@ def _builtin_covers() -> dict[str, Cover]:
         depletion_fraction=0.0,
         curve_number={"A": 100, "B": 100, "C": 100, "D": 100},
         water_depth_m=2.0,  # farm ponds and small reservoirs, mean depth (our choice)
+        water_fetch_m=100.0,  # a pond of about 1 ha, 100 m across (our choice)
     )
     return {c.name: c for c in (forest, pasture, crop, water)}
 

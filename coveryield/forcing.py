@@ -18,7 +18,8 @@ References
    FAO Irrigation and Drainage Paper 56. Eqs. 3, 4, 6, 47 and 58 (ETc = Kc ETo).
 .. [2] Monteith, J. L. (1965). Evaporation and environment. Symp. Soc. Exp. Biol. 19, 205-234.
 .. [3] de Bruin, H. A. R. (1982). J. Hydrol. 59, 261-274; Finch, J. W. (2001). Hydrol.
-   Processes 15, 2771-2778 (open water with heat storage; see coveryield.physics.open_water).
+   Processes 15, 2771-2778; McJannet et al. (2008) (open water with heat storage and the wind
+   function of small water bodies; see coveryield.physics.open_water).
 """
 
 from __future__ import annotations
@@ -283,6 +284,7 @@ def _open_water_rate(col, doy, site, cover):
         site.elevation_m,
         depth_m=cover.water_depth_m,
         albedo=cover.albedo,
+        fetch_m=cover.water_fetch_m,
     )
     return evaporation
 
@@ -312,7 +314,7 @@ def cover_evaporation(climate, cover, et0_mm=None):
         Record as for :func:`reference_et`.
     cover : Cover
         Land cover (``albedo`` [-], ``height_m`` [m], ``rs_s_per_m`` [s m-1], ``is_water``,
-        ``kc_calendar`` [-], ``water_depth_m`` [m]).
+        ``kc_calendar`` [-], ``water_depth_m`` [m], ``water_fetch_m`` [m]).
     et0_mm : pandas.Series, optional
         FAO-56 reference evaporation on the same index [mm d-1]; computed when not given
         (pass it to save time when several covers share one record).

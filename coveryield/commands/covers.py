@@ -16,6 +16,7 @@ SHOWN = (
     "extinction_coefficient",
     "curve_number",
     "water_depth_m",
+    "water_fetch_m",
 )
 
 
@@ -69,7 +70,7 @@ def cover_lines(covers: dict) -> list[str]:
             f"{cal.kcb_ini:g}/{cal.kcb_mid:g}/{cal.kcb_end:g} (FAO-56 Tables 11 and 17)"
         )
     lines.append("(LAI): canopy store sized from the leaf area, 0.2 mm per unit LAI "
-                 "(Dickinson 1984); water_depth_m applies to open water only.")
+                 "(Dickinson 1984); water_depth_m and water_fetch_m apply to open water only.")
     for n in names:
         growth = covers[n].growth
         if growth is None:

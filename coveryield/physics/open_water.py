@@ -3,30 +3,30 @@
 A pond, lake or reservoir does not follow the day's weather as a canopy does: its water stores
 heat in spring and summer and gives it back in autumn and winter, and its surface hardly changes
 temperature between day and night. This module follows the equilibrium-temperature approach
-(Edinger et al. 1968; de Bruin 1982; Finch 2001):
+(Edinger et al. 1968; de Bruin 1982; Finch 2001) with the wind function of McJannet et al.
+(2008) for small water bodies:
 
-1. The **wet-bulb temperature** Tn of the air (the temperature at which a wet surface would
-   neither gain nor lose sensible plus latent heat).
-2. The surface energy budget, linearised about Tn, gives the **equilibrium temperature** Te
-   (where the water would neither gain nor lose heat) and a heat-exchange coefficient K.
+1. The **wind function** f(u) = (2.33 + 1.65·u2)·L^-0.1 [mm d-1 kPa-1] gives the exchange of
+   vapour (and, through γ, of sensible heat) between the water and the air measured at a land
+   station, for a water body of fetch L: smaller ponds exchange more, because the air over
+   them has not yet adjusted to the water.
+2. The surface energy budget Q(T) = Rn(T) − H(T) − λE(T) of a water surface at temperature T
+   is zero at the **equilibrium temperature** Te (where the water would neither gain nor lose
+   heat). Te is found exactly (Newton's method on the full budget, not a linearisation), and
+   K = −dQ/dT at Te is the heat-exchange coefficient.
 3. A well-mixed water column of depth h approaches Te with the **time constant** τ = C/K,
    C = ρw·cw·h; over one day Tw moves by the exact solution of C·dTw/dt = K·(Te − Tw).
-4. The heat stored, G = C·(Tw,end − Tw,start), is taken from the available energy of the
-   Penman–Monteith equation with rs = 0.
-
-The derivation of steps 2 and 3 (our own, written out in :func:`equilibrium_temperature`) uses
-the same linearisation of the saturation curve as the Penman–Monteith equation itself.
-
-Wind and roughness: the station wind at 2 m over grass is used as the wind at 2 m over the water
-(a pond or lake is too small for the smoother surface to speed the wind up: its internal
-boundary layer stays shallow, common practice, no source); momentum roughness z0m = 1 mm and
-heat and vapour roughness z0h = 0.1·z0m, the ratio FAO-56 eq. 4 takes (over water the scalar
-roughness is, if anything, smaller; Brutsaert 1982, from memory).
+4. The heat stored, G = C·(Tw,end − Tw,start), is taken from the available energy, and the net
+   radiation is that of the water at its own mean temperature of the day (it emits as a body at
+   Tw, not at the air temperature); then the Penman equation for a wet surface with f(u).
 
 Vapour-pressure deficit: FAO-56 eq. 12 averages e° at Tmax and Tmin because a crop's surface
 warms and cools with the air through the day. A water surface keeps nearly one temperature
-through the day, so the daily linearisation point of the Penman–Monteith equation is the
-day's mean temperature: es = e°(Tmean) (FAO-56 eq. 11 at Tmean; our derivation).
+through the day, so the daily linearisation point of the Penman equation is the day's mean
+temperature: es = e°(Tmean) (FAO-56 eq. 11 at Tmean; our derivation).
+
+Wind: the station's wind at 2 m over grass (FAO-56 eq. 47) is what the wind function expects
+(it was fitted to land-station wind); it is not moved up over the smoother water.
 
 References
 ----------
@@ -34,13 +34,18 @@ References
    temperatures to meteorological conditions. Water Resour. Res., 4(5), 1137-1143 (the
    equilibrium temperature; from memory).
 .. [2] de Bruin, H. A. R. (1982). Temperature and energy balance of a water reservoir determined
-   from standard weather data of a land station. J. Hydrol., 59, 261-274 (from memory).
+   from standard weather data of a land station. J. Hydrol., 59, 261-274 (from memory; the net
+   radiation at the water temperature and the time constant as transcribed in secondary
+   sources).
 .. [3] Finch, J. W. (2001). A comparison between measured and modelled open water evaporation
    from a reservoir in south-east England. Hydrol. Processes, 15, 2771-2778 (from memory).
-.. [4] Allen, R. G., Pereira, L. S., Raes, D. & Smith, M. (1998). FAO Irrigation and Drainage
-   Paper 56, eqs. 3, 4, 8, 11, 13, 37-40.
-.. [5] Brutsaert, W. (1982). Evaporation into the Atmosphere. Reidel, ch. 4-5 (roughness of
-   water surfaces; from memory).
+.. [4] McJannet, D. L., Webster, I. T., Stenson, M. P. & Sherman, B. S. (2008). Estimating open
+   water evaporation for the Murray-Darling Basin. CSIRO Water for a Healthy Country report
+   (the wind function f(u) = (2.33 + 1.65 u2) L^-0.1 in mm d-1 kPa-1, u2 the 2 m wind of a land
+   station, L the fetch in m; the same form is used by several public lake-evaporation codes,
+   secondary; the report itself not checked, authors and title from memory).
+.. [5] Allen, R. G., Pereira, L. S., Raes, D. & Smith, M. (1998). FAO Irrigation and Drainage
+   Paper 56, eqs. 8, 11, 13, 37-40, 47.
 """
 
 from __future__ import annotations
@@ -49,17 +54,14 @@ import sys
 
 import numpy as np
 
-from .evaporation import SECONDS_PER_DAY, VON_KARMAN, penman_monteith
 from .meteo import (
     KELVIN_OFFSET_K,
-    SPECIFIC_HEAT_AIR_MJ_PER_KG_C,
+    LATENT_HEAT_MJ_PER_KG,
     _arr,
     _like,
-    air_density,
     atmospheric_pressure,
     psychrometric_constant,
     saturation_vapour_pressure,
-    slope_from_saturation,
     vapour_pressure_slope,
 )
 from .radiation import (
@@ -72,98 +74,72 @@ from .radiation import (
 
 #: Albedo of open water, daily mean [-] (0.08: Oke 1987 via a secondary source).
 WATER_ALBEDO = 0.08
-#: Momentum roughness length of a pond or lake surface [m] (about 1 mm; common practice).
-WATER_ROUGHNESS_M = 0.001
-#: Heat and vapour roughness as a fraction of the momentum roughness (FAO-56 eq. 4) [-].
-WATER_HEAT_ROUGHNESS_RATIO = 0.1
-#: Height at which the wind over the water is taken (the station wind at 2 m) [m].
-WATER_WIND_HEIGHT_M = 2.0
+#: Fetch of the built-in water: a pond of about 1 ha, 100 m across [m] (our choice, to match
+#: "farm ponds and small reservoirs" 2 m deep).
+WATER_FETCH_M = 100.0
+#: Wind-function coefficients of McJannet et al. (2008): f(u) = (a + b·u2)·L^-0.1
+#: [mm d-1 kPa-1, mm d-1 kPa-1 per m s-1, -].
+WIND_FUNCTION_A = 2.33
+WIND_FUNCTION_B = 1.65
+WIND_FUNCTION_FETCH_EXPONENT = -0.1
 #: Volumetric heat capacity of water, rho_w c_w near 15 °C (999 kg m-3 x 4.186e-3 MJ kg-1 K-1;
 #: handbook values, from memory) [MJ m-3 K-1].
 WATER_HEAT_CAPACITY_MJ_PER_M3_K = 4.18
 #: Days of weather used to find the water temperature on the first day: the recursion runs over
 #: them once and starts the record from the temperature it ends with [d].
 SPIN_UP_DAYS = 365
-#: Lowest wind speed used for the resistance, which is infinite in calm air [m s-1].
-MIN_WIND_MS = 0.5
-_NEWTON_STEPS = 8
+_NEWTON_STEPS = 10
 
 
-def water_aerodynamic_resistance(u2_ms, height_m=WATER_WIND_HEIGHT_M,
-                                 roughness_m=WATER_ROUGHNESS_M,
-                                 heat_roughness_ratio=WATER_HEAT_ROUGHNESS_RATIO):
-    """Aerodynamic resistance over open water (neutral log profile, d = 0).
+def small_water_wind_function(u2_ms, fetch_m=WATER_FETCH_M):
+    """Wind function of a small water body, f(u) = (2.33 + 1.65·u2)·L^-0.1.
 
     Parameters
     ----------
     u2_ms : float or array_like
-        Wind speed at ``height_m`` over the water [m s-1].
-    height_m : float, optional
-        Height of wind, temperature and humidity [m].
-    roughness_m : float, optional
-        Momentum roughness length z0m [m].
-    heat_roughness_ratio : float, optional
-        z0h / z0m [-].
+        Wind speed at 2 m at a land station (FAO-56 eq. 47) [m s-1]; negative values count as 0.
+    fetch_m : float
+        Fetch of the water body, its length along the wind (about the square root of its area
+        for a compact pond) [m].
 
     Returns
     -------
     float or array_like
-        ra = ln(z/z0m)·ln(z/z0h) / (k²·u) [s m-1]; about 448/u at z = 2 m, z0m = 1 mm,
-        z0h = 0.1 mm.
-
-    References
-    ----------
-    FAO-56 (Allen et al. 1998), eq. 4 with d = 0 (no canopy) and z0h = 0.1 z0m.
-    """
-    z = _arr(height_m)
-    with np.errstate(divide="ignore"):
-        ra = (
-            np.log(z / roughness_m)
-            * np.log(z / (heat_roughness_ratio * roughness_m))
-            / (VON_KARMAN**2 * _arr(u2_ms))
-        )  # FAO-56 eq. 4, d = 0
-    return _like(ra, u2_ms)
-
-
-def wet_bulb_temperature(t_c, ea_kpa, pressure_kpa):
-    """Wet-bulb temperature from air temperature and vapour pressure.
-
-    Parameters
-    ----------
-    t_c : float or array_like
-        Air temperature [°C].
-    ea_kpa : float or array_like
-        Actual vapour pressure [kPa].
-    pressure_kpa : float or array_like
-        Atmospheric pressure [kPa].
-
-    Returns
-    -------
-    float or array_like
-        Tn [°C], the root of e°(Tn) − γ·(T − Tn) = ea.
+        f(u) [mm d-1 kPa-1]: evaporation per kPa of vapour-pressure difference between the water
+        surface and the air. Multiply by λ for MJ m-2 d-1 kPa-1.
 
     Notes
     -----
-    The psychrometer equation (FAO-56 eq. 15) with the psychrometric constant of eq. 8, solved
-    by Newton's method from Tn = T (eight steps; the function is convex and increasing, so the
-    steps converge from above to well below 1e-9 °C).
+    The intercept (2.33 at calm air) stands for free convection over water warmer than the
+    air; the L^-0.1 factor carries the size effect: the air over a small pond has not adjusted
+    to the water, so it is drier and exchanges more per unit area (Sweers 1976 made the
+    same point with area^-0.05; from memory).
 
     References
     ----------
-    FAO-56 (Allen et al. 1998), eqs. 8, 11, 13 and 15.
+    McJannet et al. (2008), the wind function for small water bodies (secondary sources; see
+    the module references).
     """
-    t = _arr(t_c)
-    ea = _arr(ea_kpa)
-    gamma = _arr(psychrometric_constant(pressure_kpa))
-    tn = np.array(t, dtype=float, copy=True)
-    for _ in range(_NEWTON_STEPS):
-        e0 = _arr(saturation_vapour_pressure(tn))
-        residual = e0 - gamma * (t - tn) - ea  # FAO-56 eq. 15
-        tn = tn - residual / (slope_from_saturation(tn, e0) + gamma)  # Δ: FAO-56 eq. 13
-    return _like(tn, t_c, ea_kpa)
+    u2 = np.maximum(_arr(u2_ms), 0.0)
+    f = (WIND_FUNCTION_A + WIND_FUNCTION_B * u2) * float(fetch_m) ** WIND_FUNCTION_FETCH_EXPONENT
+    return _like(f, u2_ms)
 
 
-def equilibrium_temperature(net_radiation_mj, t_c, ea_kpa, pressure_kpa, ra_s_per_m,
+def _surface_heat_gain(t_c, net_radiation_mj, ta_c, ea_kpa, gamma, transfer_mj, sigma):
+    """Q(T) = Rn(T) − H(T) − λE(T) of a water surface at T [MJ m-2 d-1] (see below)."""
+    emitted_extra = sigma * ((t_c + KELVIN_OFFSET_K) ** 4 - (ta_c + KELVIN_OFFSET_K) ** 4)
+    deficit = _arr(saturation_vapour_pressure(t_c)) - ea_kpa
+    exchanged = transfer_mj * (gamma * (t_c - ta_c) + deficit)
+    return net_radiation_mj - emitted_extra - exchanged
+
+
+def _heat_exchange_coefficient(t_c, gamma, transfer_mj, sigma):
+    """K = −dQ/dT of a water surface at T [MJ m-2 d-1 K-1]."""
+    return 4.0 * sigma * (t_c + KELVIN_OFFSET_K) ** 3 + transfer_mj * (
+        gamma + _arr(vapour_pressure_slope(t_c)))
+
+
+def equilibrium_temperature(net_radiation_mj, t_c, ea_kpa, pressure_kpa, transfer_mj,
                             sigma=STEFAN_BOLTZMANN_FAO56):
     """Equilibrium temperature of a water surface and its heat-exchange coefficient.
 
@@ -178,46 +154,50 @@ def equilibrium_temperature(net_radiation_mj, t_c, ea_kpa, pressure_kpa, ra_s_pe
         Actual vapour pressure [kPa].
     pressure_kpa : float
         Atmospheric pressure [kPa].
-    ra_s_per_m : float or array_like
-        Aerodynamic resistance over the water [s m-1].
+    transfer_mj : float or array_like
+        λ·f(u), the wind function in energy units (:func:`small_water_wind_function` times
+        2.45 MJ kg-1) [MJ m-2 d-1 kPa-1].
     sigma : float, optional
         Stefan-Boltzmann constant [MJ K-4 m-2 d-1].
 
     Returns
     -------
     te_c : float or array_like
-        Equilibrium temperature Te [°C].
+        Equilibrium temperature Te [°C]: Q(Te) = 0.
     k_mj : float or array_like
-        Heat-exchange coefficient K [MJ m-2 d-1 K-1]: the water gains K·(Te − Tw).
+        Heat-exchange coefficient K = −dQ/dT at Te [MJ m-2 d-1 K-1]: near Te the water gains
+        K·(Te − Tw).
 
     Notes
     -----
-    The net heat gain of a water surface at temperature T is Q(T) = Rn(T) − H(T) − λE(T), with
-    H = ρcp(T − Ta)/ra and λE = ρcp(e°(T) − ea)/(γ·ra). At the wet-bulb temperature Tn,
-    e°(Tn) − ea = γ(Ta − Tn), so H + λE = 0 there. Linearising about Tn, with
-    e°(T) ≈ e°(Tn) + Δn(T − Tn) and the surface's emission σ(T + 273.16)⁴ likewise::
+    The net heat gain of a water surface at temperature T (emissivity 1, as de Bruin 1982)::
 
-        Q(T) ≈ Rn(Tn) − K·(T − Tn),   K = 4σ(Tn + 273.16)³ + (ρcp/ra)·(Δn + γ)/γ
-        Rn(Tn) ≈ Rn(Ta) + 4σ(Ta + 273.16)³·(Ta − Tn)
-        Te = Tn + Rn(Tn)/K            (Q(Te) = 0)
+        Q(T) = Rn − σ[(T + 273.16)⁴ − (Ta + 273.16)⁴] − λf(u)·[γ(T − Ta) + e°(T) − ea]
 
-    (ρcp/ra converted to a daily flux with 86 400 s d-1.) This is the equilibrium temperature of
-    Edinger et al. (1968) in the form used by de Bruin (1982); the linearisation is ours.
+    where Rn is the net radiation at air temperature, the second term the extra emission of a
+    surface at T, and the last the sensible (γ·λf) and latent (λf) heat given to the air. Q
+    falls with T and is concave, so Newton's method from T = Ta converges (after its first
+    step, from above) to the one root Te; ten steps leave |Q(Te)| below 1e-9 MJ m-2 d-1.
+    Edinger et al. (1968) and de Bruin (1982) linearise e°(T) about the wet-bulb temperature
+    instead; that puts Te too warm by up to a kelvin on dry days (e° is convex), and the
+    evaporation of the warmer water then no longer closes the energy budget. Solving the full
+    budget is our choice.
 
     References
     ----------
-    Edinger, Duttweiler & Geyer (1968); de Bruin (1982); FAO-56 (Allen et al. 1998), eqs. 8,
-    13, 39 and Annex 3 eq. 3-5.
+    Edinger, Duttweiler & Geyer (1968); de Bruin (1982); McJannet et al. (2008); FAO-56 (Allen
+    et al. 1998), eqs. 8, 11, 13 and 39.
     """
-    t = _arr(t_c)
-    tn = _arr(wet_bulb_temperature(t, ea_kpa, pressure_kpa))
+    ta = _arr(t_c)
+    ea = _arr(ea_kpa)
+    rn = _arr(net_radiation_mj)
+    transfer = _arr(transfer_mj)
     gamma = _arr(psychrometric_constant(pressure_kpa))
-    delta_n = _arr(vapour_pressure_slope(tn))
-    rho = _arr(air_density(pressure_kpa, t, ea_kpa))
-    transfer = SECONDS_PER_DAY * rho * SPECIFIC_HEAT_AIR_MJ_PER_KG_C / _arr(ra_s_per_m)
-    k = 4.0 * sigma * (tn + KELVIN_OFFSET_K) ** 3 + transfer * (delta_n + gamma) / gamma
-    rn_at_tn = _arr(net_radiation_mj) + 4.0 * sigma * (t + KELVIN_OFFSET_K) ** 3 * (t - tn)
-    te = tn + rn_at_tn / k  # Q(Te) = 0
+    te = np.array(ta, dtype=float, copy=True)
+    for _ in range(_NEWTON_STEPS):
+        gain = _surface_heat_gain(te, rn, ta, ea, gamma, transfer, sigma)
+        te = te + gain / _heat_exchange_coefficient(te, gamma, transfer, sigma)
+    k = _heat_exchange_coefficient(te, gamma, transfer, sigma)
     return _like(te, net_radiation_mj, t_c), _like(k, net_radiation_mj, t_c)
 
 
@@ -284,7 +264,7 @@ def _relax_series_python(te, decay, initial_c):
 
 
 def open_water_evaporation(tmax_c, tmin_c, ea_kpa, rs_mj, u2_ms, doy, lat_deg, elevation_m,
-                           depth_m, albedo=WATER_ALBEDO, roughness_m=WATER_ROUGHNESS_M):
+                           depth_m, albedo=WATER_ALBEDO, fetch_m=WATER_FETCH_M):
     """Daily evaporation of a pond, lake or reservoir, with its heat storage.
 
     Parameters
@@ -296,8 +276,8 @@ def open_water_evaporation(tmax_c, tmin_c, ea_kpa, rs_mj, u2_ms, doy, lat_deg, e
     rs_mj : array_like
         Incoming solar radiation [MJ m-2 d-1].
     u2_ms : array_like
-        Wind speed at 2 m over the station's grass (FAO-56 eq. 47) [m s-1]; used unchanged as
-        the wind at 2 m over the water.
+        Wind speed at 2 m over the station's grass (FAO-56 eq. 47) [m s-1]; the wind the wind
+        function expects.
     doy : array_like of int
         Day of the year, 1-366 [day].
     lat_deg : float
@@ -308,8 +288,8 @@ def open_water_evaporation(tmax_c, tmin_c, ea_kpa, rs_mj, u2_ms, doy, lat_deg, e
         Mean depth of the mixed water column, > 0 [m].
     albedo : float, optional
         Albedo of the water [-].
-    roughness_m : float, optional
-        Momentum roughness length of the water surface [m].
+    fetch_m : float, optional
+        Fetch of the water body, > 0 [m].
 
     Returns
     -------
@@ -322,30 +302,41 @@ def open_water_evaporation(tmax_c, tmin_c, ea_kpa, rs_mj, u2_ms, doy, lat_deg, e
 
     Notes
     -----
-    Net radiation by FAO-56 eqs. 37-40 with the water's albedo; ra by
-    :func:`water_aerodynamic_resistance` (wind at least :data:`MIN_WIND_MS`); heat storage by
-    :func:`equilibrium_temperature` and :func:`water_temperature`; then FAO-56 eq. 3 with
-    rs = 0, available energy Rn − G and es = e°(Tmean) (see the module notes)::
+    Net radiation at air temperature Rn by FAO-56 eqs. 37-40 with the water's albedo; the wind
+    function by :func:`small_water_wind_function`; Te and K by
+    :func:`equilibrium_temperature`; the water temperature and stored heat G by
+    :func:`water_temperature`. The day's mean water temperature follows from the same
+    equation, C·(Tw,end − Tw,start) = K·(Te − T̄w) over one day, so T̄w = Te − G/K, and the net
+    radiation of the water is Rn − σ[(T̄w + 273.16)⁴ − (Tmean + 273.16)⁴] (de Bruin 1982). Then
+    the Penman equation for a wet surface (McJannet et al. 2008)::
 
-        λE = [Δ(Rn − G) + 86 400·ρa·cp·(e°(Tmean) − ea)/ra] / (Δ + γ)
+        λE = [Δ(Rn,w − G) + γ·λf(u)·(e°(Tmean) − ea)] / (Δ + γ)
+
+    with Δ at the day's mean air temperature.
 
     References
     ----------
-    de Bruin (1982); Finch (2001); FAO-56 (Allen et al. 1998), eqs. 3, 4, 11, 37-40.
+    Penman (1948); de Bruin (1982); Finch (2001); McJannet et al. (2008); FAO-56 (Allen et al.
+    1998), eqs. 8, 9, 11, 13, 37-40.
     """
     tmean = 0.5 * (_arr(tmax_c) + _arr(tmin_c))  # FAO-56 eq. 9
     ea = _arr(ea_kpa)
     pressure = float(atmospheric_pressure(elevation_m))
+    gamma = float(psychrometric_constant(pressure))
     rso = clear_sky_radiation(lat_deg, doy, elevation_m)
     rn = _arr(net_radiation(net_shortwave_radiation(rs_mj, albedo),
                             net_longwave_radiation(tmax_c, tmin_c, ea, rs_mj, rso)))
-    ra = _arr(water_aerodynamic_resistance(np.maximum(_arr(u2_ms), MIN_WIND_MS),
-                                           roughness_m=roughness_m))
-    te, k = equilibrium_temperature(rn, tmean, ea, pressure, ra)
+    transfer = LATENT_HEAT_MJ_PER_KG * _arr(small_water_wind_function(u2_ms, fetch_m))
+    te, k = equilibrium_temperature(rn, tmean, ea, pressure, transfer)
     tw, stored = water_temperature(np.atleast_1d(te), np.atleast_1d(k), depth_m)
-    es = _arr(saturation_vapour_pressure(tmean))  # FAO-56 eq. 11 at Tmean (module notes)
-    evap = penman_monteith(rn, stored.reshape(np.shape(rn)), tmean, es, ea, pressure, ra, 0.0)
-    return np.atleast_1d(_arr(evap)), tw, stored
+    stored = stored.reshape(np.shape(rn))
+    day_mean_tw = _arr(te) - stored / _arr(k)  # exact for the day's linear relaxation
+    rn_water = rn - STEFAN_BOLTZMANN_FAO56 * (
+        (day_mean_tw + KELVIN_OFFSET_K) ** 4 - (tmean + KELVIN_OFFSET_K) ** 4)
+    delta = _arr(vapour_pressure_slope(tmean))
+    deficit = _arr(saturation_vapour_pressure(tmean)) - ea  # FAO-56 eq. 11 at Tmean
+    latent = (delta * (rn_water - stored) + gamma * transfer * deficit) / (delta + gamma)
+    return np.atleast_1d(latent / LATENT_HEAT_MJ_PER_KG), tw, stored
 
 
 def time_constant_days(k_mj, depth_m):

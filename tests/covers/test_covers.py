@@ -110,4 +110,5 @@ def test_covers_command_lists_parameters_with_units_and_sources(capsys):
     for expected in ("rs_s_per_m", "s m-1", "FAO-56 Table 22", "forest", "water"):
         assert expected in out
     assert "water_depth_m" in out
+    assert "water_fetch_m" in out and "McJannet" in out
     assert "Kcb" in out

@@ -71,8 +71,8 @@ def demo_climate():
 def test_demo_open_water_within_fao56_practice(demo_climate):
     # FAO-56 Table 12 (Allen et al. 1998): Kc of open water 1.05 for shallow water in subhumid
     # climates, 1.25 for deep water in autumn and winter (V2 in a secondary source); the annual
-    # 1.05-1.25 x ETo band is common practice (from memory). Before heat storage, smooth-water
-    # roughness and the unmoved wind, this ratio was 1.43.
+    # 1.05-1.25 x ETo band is common practice (from memory). Before heat storage and the
+    # small-water wind function, this ratio was 1.43.
     assert 1.05 <= water_over_et0(demo_climate) <= 1.25
 
 
@@ -81,15 +81,13 @@ def test_wet_maritime_open_water_within_fao56_practice():
     assert 1.05 <= water_over_et0(synthetic_climate(**WET)) <= 1.25
 
 
-def test_dry_climate_open_water_near_reference():
-    # In a dry, sunny climate with a large daily range the smooth water draws less sensible heat
-    # from dry air than the rough reference grass, and its surface does not follow the day's
-    # heat (es at Tmean, see coveryield.physics.open_water), so the ratio falls to about 1.0:
-    # below the 1.05 that FAO-56 Table 12 gives for subhumid climates (V2). We accept
-    # 0.95-1.25 here (our derivation, C); lake evaporation near ETo in semi-arid climates is
-    # common practice, no source.
-    ratio = water_over_et0(synthetic_climate(**DRY))
-    assert 0.95 <= ratio <= 1.25
+def test_dry_climate_open_water_within_fao56_practice():
+    # same band and sources as the demo test. The dry case sits at the band's lower edge
+    # (1.05 for the built-in 100 m pond): smooth water draws less sensible heat from dry air
+    # than rough grass and its surface does not follow the day's heat (es at Tmean, see
+    # coveryield.physics.open_water). A larger water body (fetch above about 110 m) falls below
+    # 1.05 here; see the README's known limits.
+    assert 1.05 <= water_over_et0(synthetic_climate(**DRY)) <= 1.25
 
 
 def test_deep_water_evaporates_later_in_the_year():
@@ -151,19 +149,88 @@ def test_steady_weather_stores_no_heat():
     assert evap[-1] == pytest.approx(evap[0], rel=1e-9)
 
 
-def test_wet_bulb_temperature_fao56_example_4():
-    # FAO-56 Example 4 (Allen et al. 1998; V2): z = 1200 m, Tdry 25.6 °C, Twet 19.5 °C give
-    # ea = 1.91 kPa with a_psy = 0.000662 (ventilated psychrometer). Read backwards with the
-    # eq. 8 psychrometric constant (0.000665 P) the wet bulb comes within 0.1 °C of 19.5 °C.
-    pressure = meteo.atmospheric_pressure(1200.0)
-    ea = meteo.saturation_vapour_pressure(19.5) - 0.000662 * pressure * (25.6 - 19.5)
-    assert ea == pytest.approx(1.91, abs=0.005)
-    assert open_water.wet_bulb_temperature(25.6, ea, pressure) == pytest.approx(19.5, abs=0.1)
+def test_wind_function_by_hand():
+    # McJannet et al. (2008) wind function for small water bodies, f(u) = (2.33 + 1.65 u2) L^-0.1
+    # in mm/d/kPa (secondary sources; the report not checked): u2 = 2 m/s over a pond 100 m
+    # across gives 5.63 x 100^-0.1 = 5.63 x 0.630957 = 3.5523 (computed by us, C). Calm air
+    # keeps the free-convection intercept; a negative wind counts as calm.
+    assert open_water.small_water_wind_function(2.0, 100.0) == pytest.approx(3.5523, abs=1e-4)
+    assert open_water.small_water_wind_function(0.0, 1.0) == pytest.approx(2.33, rel=1e-12)
+    assert open_water.small_water_wind_function(-1.0, 1.0) == pytest.approx(2.33, rel=1e-12)
 
 
-def test_station_wind_is_not_moved_up_over_the_water():
-    # The open-water rate uses the station's 2 m wind unchanged (module notes): with the same
-    # u2 the resistance is exactly ln(2/z0m) ln(2/z0h)/(k^2 u2) (FAO-56 eq. 4, d = 0).
-    u2 = np.array([1.0, 2.0, 4.0])
-    ra = open_water.water_aerodynamic_resistance(u2)
-    np.testing.assert_allclose(ra * u2, np.log(2000.0) * np.log(20000.0) / 0.41**2)
+@pytest.mark.parametrize("u2_ms", [3.0, 4.0, 5.0])
+def test_wind_function_of_a_pond_near_the_neutral_log_profile(u2_ms):
+    # Two independent routes to the vapour exchange over a 1 ha pond in a moderate wind: the
+    # empirical wind function (McJannet et al. 2008) and the neutral log profile over water,
+    # FAO-56 eq. 4 with d = 0, z = 2 m, z0m = 1 mm (V2: the default open-water roughness of a
+    # secondary source) and z0h = 0.1 z0m (FAO-56's ratio). The log profile's exchange per kPa
+    # is rho cp / (gamma ra lambda) x 86 400 s/d. They agree within 10 % at 3-5 m/s (our
+    # check, C); at low wind the function keeps its free-convection intercept, the profile not.
+    pressure, t, ea = 101.3, 15.0, 1.2
+    ra = np.log(2.0 / 0.001) * np.log(2.0 / 0.0001) / (0.41**2 * u2_ms)  # FAO-56 eq. 4
+    rho = meteo.air_density(pressure, t, ea)
+    profile = 86400 * rho * 1.013e-3 / (meteo.psychrometric_constant(pressure) * ra * 2.45)
+    assert open_water.small_water_wind_function(u2_ms, 100.0) == pytest.approx(profile, rel=0.10)
+
+
+def test_equilibrium_temperature_closes_the_full_energy_budget():
+    # At Te the water surface neither gains nor loses heat: Rn - extra emission - H - lambda E
+    # = 0, written out here independently of the module (emissivity 1 as de Bruin 1982; H and
+    # lambda E through the wind function, McJannet et al. 2008). K is the budget's slope there.
+    rn, ta, ea, pressure = np.array([15.0, 2.0, -3.0]), np.array([18.0, 5.0, 25.0]), 1.0, 100.0
+    transfer = 2.45 * open_water.small_water_wind_function(np.array([3.0, 1.0, 6.0]), 100.0)
+    te, k = open_water.equilibrium_temperature(rn, ta, ea, pressure, transfer)
+    gamma = meteo.psychrometric_constant(pressure)
+    sigma = radiation.STEFAN_BOLTZMANN_FAO56
+
+    def gain(t):
+        return (rn - sigma * ((t + 273.16) ** 4 - (ta + 273.16) ** 4)
+                - transfer * (gamma * (t - ta) + meteo.saturation_vapour_pressure(t) - ea))
+
+    np.testing.assert_allclose(gain(te), 0.0, atol=1e-9)
+    # K uses FAO-56 eq. 13 for de°/dT, which rounds 17.27 x 237.3 = 4098.17 to 4098: 4e-5
+    np.testing.assert_allclose(k, (gain(te - 1e-4) - gain(te + 1e-4)) / 2e-4, rtol=1e-4)
+
+
+def test_evaporation_closes_the_water_surface_energy_budget():
+    # Over a year the evaporation must equal what the surface energy budget leaves at the
+    # water's mean temperature, Rn(Tw) - H(Tw) - G, and what the bulk (Dalton) form gives,
+    # lambda f (e°(Tw) - ea) (de Bruin 1982; McJannet et al. 2008). The Penman form linearises
+    # e° about the air temperature, so a few per cent apart is expected (our derivation, C).
+    climate = synthetic_climate(**DRY)
+    d = climate.daily
+    tmax, tmin, ea = (d[c].to_numpy() for c in ("tmax_c", "tmin_c", "ea_kpa"))
+    rs, doy = d["rs_mj"].to_numpy(), d.index.dayofyear.to_numpy()
+    u2 = d["wind_ms"].to_numpy()
+    evap, _, stored = open_water.open_water_evaporation(
+        tmax, tmin, ea, rs, u2, doy, -33.0, 100.0, depth_m=2.0)
+    ta = 0.5 * (tmax + tmin)
+    pressure = meteo.atmospheric_pressure(100.0)
+    rn = radiation.net_radiation(
+        radiation.net_shortwave_radiation(rs, 0.08),
+        radiation.net_longwave_radiation(tmax, tmin, ea, rs,
+                                         radiation.clear_sky_radiation(-33.0, doy, 100.0)))
+    transfer = 2.45 * open_water.small_water_wind_function(u2, 100.0)
+    te, k = open_water.equilibrium_temperature(rn, ta, ea, pressure, transfer)
+    tw = te - stored / k  # the day's mean water temperature
+    gamma = meteo.psychrometric_constant(pressure)
+    sigma = radiation.STEFAN_BOLTZMANN_FAO56
+    residual = (rn - sigma * ((tw + 273.16) ** 4 - (ta + 273.16) ** 4)
+                - transfer * gamma * (tw - ta) - stored) / 2.45
+    bulk = transfer * (meteo.saturation_vapour_pressure(tw) - ea) / 2.45
+    assert evap.sum() == pytest.approx(residual.sum(), rel=0.02)
+    assert evap.sum() == pytest.approx(bulk.sum(), rel=0.05)
+
+
+def test_smaller_water_bodies_evaporate_more():
+    # the wind function falls as L^-0.1 (McJannet et al. 2008): from a 10 m pond to a 5 km
+    # lake the annual evaporation must fall, in every climate
+    climate = synthetic_climate(**WET)
+    totals = [
+        forcing.cover_evaporation(
+            climate, BUILTIN_COVERS["water"].model_copy(update={"water_fetch_m": fetch})
+        )["dry_mm"].sum()
+        for fetch in (10.0, 100.0, 1000.0, 5000.0)
+    ]
+    assert totals == sorted(totals, reverse=True)

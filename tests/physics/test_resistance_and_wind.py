@@ -55,16 +55,6 @@ def test_resistance_is_infinite_in_calm_air():
     assert evaporation.aerodynamic_resistance(0.0, 2.0, 0.12) == math.inf
 
 
-def test_open_water_resistance():
-    # neutral log profile over water (FAO-56 eq. 4 with d = 0), z = 2 m, z0m = 1 mm and
-    # z0h = 0.1 z0m: ra = ln(2000) ln(20000) / 0.41^2 = 7.6009 x 9.9035 / 0.1681 = 447.8 s/m at
-    # 1 m/s (computed by us, C); with z0h = z0m it is the 344/u2 of the common form (C)
-    assert open_water.water_aerodynamic_resistance(1.0) == pytest.approx(447.8, abs=0.1)
-    assert open_water.water_aerodynamic_resistance(
-        1.0, heat_roughness_ratio=1.0
-    ) == pytest.approx(343.7, abs=0.1)
-
-
 def test_wind_transfer_leaves_reference_grass_unchanged():
     # a 0.12 m grass cover seen from a 2 m station over 0.12 m grass: same surface, same height
     assert wind.wind_above_canopy(3.0, 2.0, 0.12) == pytest.approx(3.0, rel=1e-12)
@@ -92,18 +82,21 @@ def test_wind_transfer_nan_below_canopy():
     assert math.isnan(wind.wind_above_canopy(3.0, 2.0, 20.0, reference_height_m=10.0))
 
 
-def test_open_water_penman_monteith_near_shuttleworth_penman():
-    # Two published open-water forms, same day (FAO-56 Example 18 weather): Penman-Monteith with
-    # rs = 0 over water (Monteith 1965; FAO-56 eq. 3) and Penman in Shuttleworth (1993) SI form.
-    # They differ in wind function and ra; agreement within 15 % is common practice, no source.
-    # A one-day record starts at its equilibrium temperature, so no heat is stored (G = 0).
+def test_tank_sized_water_near_shuttleworth_penman():
+    # Two published open-water forms, same day (FAO-56 Example 18 weather): ours (equilibrium
+    # temperature, de Bruin 1982; wind function of McJannet et al. 2008) for a tank 1.5 m
+    # across, and Penman (1948) in Shuttleworth (1993) SI form, whose wind function was fitted
+    # to evaporation tanks of about that size (from memory). Ours takes es at Tmean and lets
+    # the water emit at its own temperature, so they still differ; agreement within 15 % is
+    # common practice, no source. A one-day record starts at its equilibrium temperature, so
+    # no heat is stored (G = 0).
     lat, doy, z = 50.8, 187, 100.0
     tmax, tmin = 21.5, 12.3
     ea = meteo.actual_vapour_pressure_from_rh_max_min(tmax, tmin, 84.0, 63.0)
     rs = radiation.solar_radiation_from_sunshine(9.25, lat, doy)
     u2 = wind.wind_speed_at_2m(10.0 / 3.6, 10.0)  # FAO-56 eq. 47
-    (pm,), _, (stored,) = open_water.open_water_evaporation(
-        [tmax], [tmin], [ea], [rs], [u2], [doy], lat, z, depth_m=2.0
+    (ours,), _, (stored,) = open_water.open_water_evaporation(
+        [tmax], [tmin], [ea], [rs], [u2], [doy], lat, z, depth_m=2.0, fetch_m=1.5
     )
     assert stored == 0.0
     rn = radiation.net_radiation(
@@ -120,7 +113,17 @@ def test_open_water_penman_monteith_near_shuttleworth_penman():
         meteo.atmospheric_pressure(z),
         u2,
     )
-    assert pm == pytest.approx(penman, rel=0.15)
+    assert ours == pytest.approx(penman, rel=0.15)
+
+
+@pytest.mark.parametrize("u2_ms", [1.0, 2.0, 3.0, 4.0, 5.0])
+def test_wind_function_at_tank_size_near_penman_1948(u2_ms):
+    # Penman's (1948) wind function, 2.626 + 1.381 u2 mm/d/kPa (Shuttleworth 1993 SI form, V),
+    # came from tanks a metre or two across (from memory); McJannet et al.'s (2008) function
+    # for a 1.5 m fetch, 0.960 x (2.33 + 1.65 u2), must come within 10 % of it at 1-5 m/s
+    # (our cross-check of the transcribed coefficients, C; the largest gap is 6.6 % at 5 m/s)
+    penman_1948 = 2.626 + 1.381 * u2_ms
+    assert open_water.small_water_wind_function(u2_ms, 1.5) == pytest.approx(penman_1948, rel=0.10)
 
 
 def test_shuttleworth_penman_by_hand():

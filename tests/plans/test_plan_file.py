@@ -65,6 +65,16 @@ def test_derived_cover_may_override_part_of_a_table(write_plan, example_text):
     assert crop.curve_number == {**builtin.curve_number, "D": 90.0}
 
 
+def test_plan_may_size_its_water_bodies(write_plan, example_text):
+    # a reservoir 2 km long and 8 m deep, derived from the built-in pond
+    text = example_text.replace("[plans.current]", '[covers.reservoir]\nbase = "water"\n'
+                                "water_fetch_m = 2000\nwater_depth_m = 8\n[plans.current]")
+    reservoir = load_plan(write_plan(text)).covers["reservoir"]
+    assert (reservoir.base, reservoir.water_fetch_m, reservoir.water_depth_m) == (
+        "water", 2000.0, 8.0)
+    assert BUILTIN_COVERS["water"].water_fetch_m == 100.0
+
+
 def test_derived_cover_may_derive_from_a_derived_cover(write_plan, example_text):
     text = example_text.replace("[plans.current]", '[covers.sapling]\nbase = "young-pine"\n'
                                 "height_m = 2\n[plans.current]")
