@@ -62,6 +62,7 @@ from .meteo import (
     atmospheric_pressure,
     psychrometric_constant,
     saturation_vapour_pressure,
+    slope_from_saturation,
     vapour_pressure_slope,
 )
 from .radiation import (
@@ -88,7 +89,7 @@ WATER_HEAT_CAPACITY_MJ_PER_M3_K = 4.18
 #: Days of weather used to find the water temperature on the first day: the recursion runs over
 #: them once and starts the record from the temperature it ends with [d].
 SPIN_UP_DAYS = 365
-_NEWTON_STEPS = 10
+_NEWTON_STEPS = 6
 
 
 def small_water_wind_function(u2_ms, fetch_m=WATER_FETCH_M):
@@ -98,7 +99,7 @@ def small_water_wind_function(u2_ms, fetch_m=WATER_FETCH_M):
     ----------
     u2_ms : float or array_like
         Wind speed at 2 m at a land station (FAO-56 eq. 47) [m s-1]; negative values count as 0.
-    fetch_m : float
+    fetch_m : float or array_like
         Fetch of the water body, its length along the wind (about the square root of its area
         for a compact pond) [m].
 
@@ -121,22 +122,19 @@ def small_water_wind_function(u2_ms, fetch_m=WATER_FETCH_M):
     the module references).
     """
     u2 = np.maximum(_arr(u2_ms), 0.0)
-    f = (WIND_FUNCTION_A + WIND_FUNCTION_B * u2) * float(fetch_m) ** WIND_FUNCTION_FETCH_EXPONENT
-    return _like(f, u2_ms)
+    f = (WIND_FUNCTION_A + WIND_FUNCTION_B * u2) * _arr(fetch_m) ** WIND_FUNCTION_FETCH_EXPONENT
+    return _like(f, u2_ms, fetch_m)
 
 
-def _surface_heat_gain(t_c, net_radiation_mj, ta_c, ea_kpa, gamma, transfer_mj, sigma):
-    """Q(T) = Rn(T) − H(T) − λE(T) of a water surface at T [MJ m-2 d-1] (see below)."""
-    emitted_extra = sigma * ((t_c + KELVIN_OFFSET_K) ** 4 - (ta_c + KELVIN_OFFSET_K) ** 4)
-    deficit = _arr(saturation_vapour_pressure(t_c)) - ea_kpa
-    exchanged = transfer_mj * (gamma * (t_c - ta_c) + deficit)
-    return net_radiation_mj - emitted_extra - exchanged
-
-
-def _heat_exchange_coefficient(t_c, gamma, transfer_mj, sigma):
-    """K = −dQ/dT of a water surface at T [MJ m-2 d-1 K-1]."""
-    return 4.0 * sigma * (t_c + KELVIN_OFFSET_K) ** 3 + transfer_mj * (
-        gamma + _arr(vapour_pressure_slope(t_c)))
+def _budget_and_slope(t_c, net_radiation_mj, ta_c, ea_kpa, gamma, transfer_mj, sigma):
+    """Q(T) = Rn(T) − H(T) − λE(T) of a water surface at T [MJ m-2 d-1], and K = −dQ/dT."""
+    t_kelvin = t_c + KELVIN_OFFSET_K
+    cube = t_kelvin * t_kelvin * t_kelvin
+    e0 = _arr(saturation_vapour_pressure(t_c))
+    emitted_extra = sigma * (cube * t_kelvin - (ta_c + KELVIN_OFFSET_K) ** 4)
+    gain = net_radiation_mj - emitted_extra - transfer_mj * (gamma * (t_c - ta_c) + e0 - ea_kpa)
+    k = 4.0 * sigma * cube + transfer_mj * (gamma + slope_from_saturation(t_c, e0))
+    return gain, k
 
 
 def equilibrium_temperature(net_radiation_mj, t_c, ea_kpa, pressure_kpa, transfer_mj,
@@ -177,7 +175,9 @@ def equilibrium_temperature(net_radiation_mj, t_c, ea_kpa, pressure_kpa, transfe
     where Rn is the net radiation at air temperature, the second term the extra emission of a
     surface at T, and the last the sensible (γ·λf) and latent (λf) heat given to the air. Q
     falls with T and is concave, so Newton's method from T = Ta converges (after its first
-    step, from above) to the one root Te; ten steps leave |Q(Te)| below 1e-9 MJ m-2 d-1.
+    step, from above) to the one root Te; six steps leave |Q(Te)| below 1e-9 MJ m-2 d-1 for air
+    at -15 to 45 °C, dewpoints up to 30 K lower, winds of 0-10 m s-1 and fetches of 1 m to
+    100 km (tested).
     Edinger et al. (1968) and de Bruin (1982) linearise e°(T) about the wet-bulb temperature
     instead; that puts Te too warm by up to a kelvin on dry days (e° is convex), and the
     evaporation of the warmer water then no longer closes the energy budget. Solving the full
@@ -195,9 +195,9 @@ def equilibrium_temperature(net_radiation_mj, t_c, ea_kpa, pressure_kpa, transfe
     gamma = _arr(psychrometric_constant(pressure_kpa))
     te = np.array(ta, dtype=float, copy=True)
     for _ in range(_NEWTON_STEPS):
-        gain = _surface_heat_gain(te, rn, ta, ea, gamma, transfer, sigma)
-        te = te + gain / _heat_exchange_coefficient(te, gamma, transfer, sigma)
-    k = _heat_exchange_coefficient(te, gamma, transfer, sigma)
+        gain, k = _budget_and_slope(te, rn, ta, ea, gamma, transfer, sigma)
+        te = te + gain / k
+    _, k = _budget_and_slope(te, rn, ta, ea, gamma, transfer, sigma)
     return _like(te, net_radiation_mj, t_c), _like(k, net_radiation_mj, t_c)
 
 

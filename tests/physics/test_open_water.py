@@ -193,6 +193,23 @@ def test_equilibrium_temperature_closes_the_full_energy_budget():
     np.testing.assert_allclose(k, (gain(te - 1e-4) - gain(te + 1e-4)) / 2e-4, rtol=1e-4)
 
 
+def test_equilibrium_temperature_converges_over_a_wide_range():
+    # Newton's six steps (documented) must reach the root for any plausible day: air -15 to
+    # 45 °C, dewpoint up to 30 K lower, Rn -8 to 28 MJ/m2/d, wind 0-10 m/s, fetch 1 m-100 km
+    rng = np.random.default_rng(1)
+    n = 20_000
+    ta = rng.uniform(-15.0, 45.0, n)
+    ea = meteo.saturation_vapour_pressure(ta - rng.uniform(0.0, 30.0, n))
+    rn = rng.uniform(-8.0, 28.0, n)
+    transfer = 2.45 * open_water.small_water_wind_function(
+        rng.uniform(0.0, 10.0, n), rng.choice([1.0, 10.0, 100.0, 1e4, 1e5], n))
+    te, _ = open_water.equilibrium_temperature(rn, ta, ea, 100.0, transfer)
+    gamma = meteo.psychrometric_constant(100.0)
+    gain = (rn - radiation.STEFAN_BOLTZMANN_FAO56 * ((te + 273.16) ** 4 - (ta + 273.16) ** 4)
+            - transfer * (gamma * (te - ta) + meteo.saturation_vapour_pressure(te) - ea))
+    assert np.abs(gain).max() < 1e-9
+
+
 def test_evaporation_closes_the_water_surface_energy_budget():
     # Over a year the evaporation must equal what the surface energy budget leaves at the
     # water's mean temperature, Rn(Tw) - H(Tw) - G, and what the bulk (Dalton) form gives,
