@@ -193,12 +193,26 @@ def equilibrium_temperature(net_radiation_mj, t_c, ea_kpa, pressure_kpa, transfe
     rn = _arr(net_radiation_mj)
     transfer = _arr(transfer_mj)
     gamma = _arr(psychrometric_constant(pressure_kpa))
+    if "numba" in sys.modules and np.ndim(gamma) == 0:  # loaded already: no start-up cost
+        te, k = _equilibrium_compiled(rn, ta, ea, transfer, float(gamma), float(sigma))
+        return _like(te, net_radiation_mj, t_c), _like(k, net_radiation_mj, t_c)
     te = np.array(ta, dtype=float, copy=True)
     for _ in range(_NEWTON_STEPS):
         gain, k = _budget_and_slope(te, rn, ta, ea, gamma, transfer, sigma)
         te = te + gain / k
     _, k = _budget_and_slope(te, rn, ta, ea, gamma, transfer, sigma)
     return _like(te, net_radiation_mj, t_c), _like(k, net_radiation_mj, t_c)
+
+
+def _equilibrium_compiled(rn, ta, ea, transfer, gamma, sigma):
+    """:func:`equilibrium_temperature` by the compiled day loop, for inputs of any shape."""
+    from .fused import equilibrium_series
+
+    columns = [np.ascontiguousarray(a, dtype=float).ravel()
+               for a in np.broadcast_arrays(rn, ta, ea, transfer)]
+    te, k = equilibrium_series(*columns, gamma, sigma, _NEWTON_STEPS)
+    shape = np.broadcast(rn, ta, ea, transfer).shape
+    return te.reshape(shape), k.reshape(shape)
 
 
 def water_temperature(te_c, k_mj, depth_m, initial_c=None):

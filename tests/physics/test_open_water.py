@@ -251,3 +251,25 @@ def test_smaller_water_bodies_evaporate_more():
         for fetch in (10.0, 100.0, 1000.0, 5000.0)
     ]
     assert totals == sorted(totals, reverse=True)
+
+
+def test_compiled_and_plain_equilibrium_temperature_agree(monkeypatch):
+    # the compiled day loop (used once numba is loaded; polynomial exp, redone with math.exp
+    # when a temperature leaves its range, as the -100 °C day here does) and the numpy Newton
+    # steps agree to 1e-9 °C (our design, C)
+    import numba  # noqa: F401 - loaded, so the compiled path is taken first
+
+    rng = np.random.default_rng(5)
+    ta = rng.uniform(-15.0, 45.0, 500)
+    ea = meteo.saturation_vapour_pressure(ta - rng.uniform(0.0, 30.0, 500))
+    rn = rng.uniform(-8.0, 28.0, 500)
+    transfer = 2.45 * open_water.small_water_wind_function(rng.uniform(0.0, 10.0, 500), 100.0)
+    cold = ta.copy()
+    cold[7] = -100.0
+    for air in (ta, cold):
+        compiled = open_water.equilibrium_temperature(rn, air, ea, 100.0, transfer)
+        with monkeypatch.context() as patch:
+            patch.delitem(sys.modules, "numba")  # as in a process that never loaded it
+            plain = open_water.equilibrium_temperature(rn, air, ea, 100.0, transfer)
+        np.testing.assert_allclose(compiled[0], plain[0], rtol=0, atol=1e-9)
+        np.testing.assert_allclose(compiled[1], plain[1], rtol=1e-12)
