@@ -46,6 +46,8 @@ References
    secondary; the report itself not checked, authors and title from memory).
 .. [5] Allen, R. G., Pereira, L. S., Raes, D. & Smith, M. (1998). FAO Irrigation and Drainage
    Paper 56, eqs. 8, 11, 13, 37-40, 47.
+.. [6] Penman, H. L. (1948). Natural evaporation from open water, bare soil and grass. Proc.
+   R. Soc. Lond. A, 193, 120-145 (the combination equation with a wind function).
 """
 
 from __future__ import annotations
