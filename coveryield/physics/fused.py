@@ -1327,27 +1327,29 @@ def equilibrium_series(net_radiation_mj, ta_c, ea_kpa, transfer_mj, gamma, sigma
     for i in range(n):
         air_kelvin = ta_c[i] + KELVIN_OFFSET_K
         air_emission[i] = sigma * air_kelvin * air_kelvin * air_kelvin * air_kelvin
+    if _newton_sweeps(te, k, net_radiation_mj, ta_c, air_emission, ea_kpa, transfer_mj, gamma,
+                      sigma, steps, False):  # a temperature left the polynomial's range
+        te[:] = ta_c
+        _newton_sweeps(te, k, net_radiation_mj, ta_c, air_emission, ea_kpa, transfer_mj, gamma,
+                       sigma, steps, True)
+    return te, k
+
+
+@njit(cache=True, error_model="numpy", fastmath=_FASTMATH)
+def _newton_sweeps(te, k, rn, ta, air_emission, ea, transfer, gamma, sigma, steps,
+                   exact):  # pragma: no cover - compiled
+    """Newton steps over all days in place; returns how many exponents missed the polynomial."""
     outside = 0
     for step in range(steps + 1):
-        for i in range(n):
+        for i in range(te.shape[0]):
             t = te[i]
             inv = 1.0 / (t + SATURATION_C_C)
             x = SATURATION_B * t * inv
             outside += (x < EXP_ARG_MIN) | (x > EXP_ARG_MAX) | (x != x)
-            te[i], k[i] = _budget_newton_step(
-                t, SATURATION_A_KPA * _exp_poly(x), inv, net_radiation_mj[i], ta_c[i],
-                air_emission[i], ea_kpa[i], transfer_mj[i], gamma, sigma, step < steps)
-    if outside:
-        te[:] = ta_c
-        for step in range(steps + 1):
-            for i in range(n):
-                t = te[i]
-                inv = 1.0 / (t + SATURATION_C_C)
-                te[i], k[i] = _budget_newton_step(
-                    t, SATURATION_A_KPA * math.exp(SATURATION_B * t * inv), inv,
-                    net_radiation_mj[i], ta_c[i], air_emission[i], ea_kpa[i], transfer_mj[i],
-                    gamma, sigma, step < steps)
-    return te, k
+            e0 = SATURATION_A_KPA * (math.exp(x) if exact else _exp_poly(x))  # FAO-56 eq. 11
+            te[i], k[i] = _budget_newton_step(t, e0, inv, rn[i], ta[i], air_emission[i], ea[i],
+                                              transfer[i], gamma, sigma, step < steps)
+    return outside
 
 
 @njit(cache=True, error_model="numpy", fastmath=_FASTMATH, inline="always")

@@ -65,7 +65,6 @@ from .meteo import (
     psychrometric_constant,
     saturation_vapour_pressure,
     slope_from_saturation,
-    vapour_pressure_slope,
 )
 from .radiation import (
     STEFAN_BOLTZMANN_FAO56,
@@ -350,8 +349,9 @@ def open_water_evaporation(tmax_c, tmin_c, ea_kpa, rs_mj, u2_ms, doy, lat_deg, e
     day_mean_tw = _arr(te) - stored / _arr(k)  # exact for the day's linear relaxation
     rn_water = rn - STEFAN_BOLTZMANN_FAO56 * (
         (day_mean_tw + KELVIN_OFFSET_K) ** 4 - (tmean + KELVIN_OFFSET_K) ** 4)
-    delta = _arr(vapour_pressure_slope(tmean))
-    deficit = _arr(saturation_vapour_pressure(tmean)) - ea  # FAO-56 eq. 11 at Tmean
+    es = _arr(saturation_vapour_pressure(tmean))  # FAO-56 eq. 11 at Tmean
+    delta = slope_from_saturation(tmean, es)  # FAO-56 eq. 13
+    deficit = es - ea
     latent = (delta * (rn_water - stored) + gamma * transfer * deficit) / (delta + gamma)
     return np.atleast_1d(latent / LATENT_HEAT_MJ_PER_KG), tw, stored
 
